@@ -1,0 +1,219 @@
+"""Pure fluids by name: critical and triple points, saturation, density and properties at (T, p).
+
+Each fluid is one file ``thermo/data/<key>.json`` holding its reference equation of state with
+the source; files are read lazily with importlib.resources and cached. SI units at this level:
+T [K], p [Pa], densities [kg/m3], specific properties per kilogram.
+"""
+
+from __future__ import annotations
+
+import functools
+import json
+from importlib import resources
+from typing import NamedTuple
+
+import numpy as np
+
+from thermo.ancillary import AncillarySaturation
+from thermo.density import DensitySolver
+from thermo.eos import HelmholtzEOS
+
+#: states per block of vectorized work: large enough to amortize numpy's per-call cost,
+#: small enough for the (states x terms) temporaries to stay in cache (DESIGN.md, section 5)
+CHUNK = 8192
+#: the vapor branch is extrapolated below the triple point down to this share of T_triple
+VAPOR_EXTRAPOLATION_T_RATIO = 0.5
+#: densities are sought up to this multiple of the triple-point liquid density
+DENSITY_SEARCH_LIMIT = 3.0
+
+PROPERTY_NAMES = ("density", "molar_volume", "Z", "alpha_p", "kappa_T", "cp", "cv", "speed_of_sound",
+                  "enthalpy", "entropy")
+
+
+class Critical(NamedTuple):
+    T: float  #: critical temperature [K]
+    p: float  #: critical pressure [Pa]
+    rho: float  #: critical density [kg/m3]
+
+
+class Triple(NamedTuple):
+    T: float  #: triple-point temperature [K]
+    p: float  #: triple-point pressure [Pa]
+
+
+class Range(NamedTuple):
+    T_min: float  #: lowest temperature of the equation's stated range [K]
+    T_max: float  #: highest temperature [K]
+    p_max: float  #: highest pressure [Pa]
+
+
+def _data_dir():
+    return resources.files("thermo").joinpath("data")
+
+
+@functools.cache
+def load_data(key: str) -> dict:
+    """The parsed data file of the fluid ``key`` (exact key, e.g. "CO2")."""
+    return json.loads(_data_dir().joinpath(f"{key}.json").read_text(encoding="utf-8"))
+
+
+@functools.cache
+def _names() -> dict[str, str]:
+    """Lower-case key, name and every alias -> key."""
+    table = {}
+    for entry in sorted(_data_dir().iterdir(), key=lambda e: e.name):
+        if entry.name.endswith(".json"):
+            data = load_data(entry.name[: -len(".json")])
+            for label in (data["key"], data["name"], *data["aliases"]):
+                table[label.lower()] = data["key"]
+    return table
+
+
+def fluids() -> list[str]:
+    """Keys of the fluids with a reference equation (each accepted by ``fluid``).
+
+    >>> fluids()[:3]
+    ['Ar', 'C2H6', 'C3H8']
+    """
+    return sorted(set(_names().values()))
+
+
+def fluid(name: str) -> Fluid:
+    """The fluid called ``name``: its key, name or an alias, any letter case ("co2", "R-744", "water").
+
+    >>> fluid("R744").critical.T  # Span & Wagner (1996), Table 3
+    304.1282
+    """
+    key = _names().get(str(name).strip().lower())
+    if key is None:
+        raise ValueError(f"unknown fluid {name!r}; known: {', '.join(fluids())}")
+    return _fluid(key)
+
+
+@functools.cache
+def _fluid(key: str) -> Fluid:
+    return Fluid(load_data(key))
+
+
+def _as_arrays(T, p) -> tuple[np.ndarray, np.ndarray, tuple]:
+    T, p = np.broadcast_arrays(np.asarray(T, dtype=float), np.asarray(p, dtype=float))
+    return T.ravel(), p.ravel(), T.shape
+
+
+def _shaped(values: np.ndarray, shape: tuple):
+    values = values.reshape(shape)
+    return values[()] if values.ndim == 0 else values
+
+
+class Fluid:
+    """One pure fluid and its reference equation of state (``source``)."""
+
+    def __init__(self, data: dict):
+        self.key: str = data["key"]
+        self.name: str = data["name"]
+        self.aliases: tuple[str, ...] = tuple(data["aliases"])
+        self.molar_mass: float = float(data["molar_mass"])  #: [kg/mol]
+        c, t, r = data["critical"], data["triple"], data["range"]
+        self.critical = Critical(float(c["T"]), float(c["p"]), float(c["rho"]))
+        self.triple = Triple(float(t["T"]), float(t["p"]))
+        self.range = Range(float(r["T_min"]), float(r["T_max"]), float(r["p_max"]))
+        self.eos = HelmholtzEOS(data)
+        self.source: str = self.eos.source
+        self._data = data
+        self._solver = DensitySolver(
+            self.eos, self.critical.T, self.critical.p, self.critical.rho / self.molar_mass,
+            float(data["acentric_factor"]), DENSITY_SEARCH_LIMIT * float(t["rho_liquid"]) / self.molar_mass)
+
+    def __repr__(self) -> str:
+        return f"fluid({self.key!r})"
+
+    @functools.cached_property
+    def saturation(self):
+        """The vapor-liquid saturation curve: pressure(T), temperature(p), densities(T) [mol/m3]."""
+        return AncillarySaturation(self._data)
+
+    # ------------------------------------------------------------ saturation
+    def saturation_pressure(self, T):
+        """Vapor pressure p_sat(T) [Pa] for T_triple <= T [K] <= T_c; NaN elsewhere."""
+        T = np.asarray(T, dtype=float)
+        return _shaped(np.asarray(self.saturation.pressure(T.ravel())), T.shape)
+
+    def saturation_temperature(self, p):
+        """Saturation temperature T_sat(p) [K] for p_triple <= p [Pa] <= p_c; NaN elsewhere."""
+        p = np.asarray(p, dtype=float)
+        return _shaped(np.asarray(self.saturation.temperature(p.ravel())), p.shape)
+
+    def saturated_densities(self, T):
+        """(rho_liquid, rho_vapor) [kg/m3] on the saturation curve at T [K]; NaN outside it."""
+        T = np.asarray(T, dtype=float)
+        liquid, vapor = self.saturation.densities(T.ravel())
+        return (_shaped(np.asarray(liquid) * self.molar_mass, T.shape),
+                _shaped(np.asarray(vapor) * self.molar_mass, T.shape))
+
+    # ------------------------------------------------------------ single phase
+    def _domain(self, T: np.ndarray, p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(inside, extrapolated): states in the equation's range, and vapor states below the
+        triple point (under the sublimation curve) evaluated on the extrapolated vapor branch."""
+        in_p = (p > 0) & (p <= self.range.p_max)
+        inside = in_p & (T >= self.range.T_min) & (T <= self.range.T_max)
+        cold = in_p & (T < self.range.T_min) & (T >= VAPOR_EXTRAPOLATION_T_RATIO * self.triple.T)
+        with np.errstate(invalid="ignore"):
+            cold &= p < self._vapor_limit_below_triple(np.where(cold, T, self.triple.T))
+        return inside, cold
+
+    def _vapor_limit_below_triple(self, T: np.ndarray) -> np.ndarray:
+        """Pressure [Pa] under which vapor is the stable phase below T_triple."""
+        return self.saturation.equations["vapor_pressure"](T)
+
+    def _molar_density(self, T: np.ndarray, p: np.ndarray) -> np.ndarray:
+        """Density [mol/m3] of 1-D states known to be in the domain, chunk by chunk."""
+        out = np.empty(T.size)
+        for start in range(0, T.size, CHUNK):
+            sl = slice(start, start + CHUNK)
+            t = T[sl]
+            p_sat = np.where(t < self.critical.T, self.saturation.pressure(np.maximum(t, self.triple.T)), np.nan)
+            p_sat = np.where(t < self.triple.T, np.inf, p_sat)  # cold states are vapor by construction
+            rho_liquid = self.saturation.densities(np.clip(t, self.triple.T, self.critical.T))[0]
+            out[sl] = self._solver.solve(t, p[sl], p_sat, rho_liquid)
+        return out
+
+    def density(self, T, p):
+        """Density [kg/m3] of the single-phase state at T [K], p [Pa].
+
+        The liquid root where p > p_sat(T) below T_c, the vapor root otherwise; NaN outside the
+        equation's range, where no stable root was found, and for NaN input.
+
+        >>> round(float(fluid("H2O").density(300.0, 0.992418352e5)), 3)  # IAPWS-95 Table 7 (from memory)
+        996.556
+        """
+        T, p, shape = _as_arrays(T, p)
+        inside, cold = self._domain(T, p)
+        use = inside | cold
+        rho = np.full(T.size, np.nan)
+        rho[use] = self._molar_density(T[use], p[use])
+        return _shaped(rho * self.molar_mass, shape)
+
+    def properties(self, T, p) -> dict[str, np.ndarray]:
+        """Single-phase properties at T [K], p [Pa], any broadcastable shapes.
+
+        Keys: density [kg/m3], molar_volume [m3/mol], Z [-], alpha_p [1/K], kappa_T [1/Pa],
+        cp, cv [J/(kg K)], speed_of_sound [m/s], enthalpy [J/kg], entropy [J/(kg K)] and
+        extrapolated [bool] (vapor below the triple point, outside the stated range). NaN where
+        ``density`` is NaN. Formulas: ``thermo.eos.HelmholtzEOS.state``.
+        """
+        T, p, shape = _as_arrays(T, p)
+        inside, cold = self._domain(T, p)
+        use = np.flatnonzero(inside | cold)
+        out = {k: np.full(T.size, np.nan) for k in PROPERTY_NAMES}
+        for start in range(0, use.size, CHUNK):
+            idx = use[start:start + CHUNK]
+            rho = self._molar_density(T[idx], p[idx])
+            s = self.eos.state(rho, T[idx])
+            M = self.molar_mass
+            for key, value in (("density", rho * M), ("molar_volume", s.molar_volume), ("Z", s.Z),
+                               ("alpha_p", s.alpha_p), ("kappa_T", s.kappa_T), ("cp", s.cp / M), ("cv", s.cv / M),
+                               ("speed_of_sound", s.w), ("enthalpy", s.h / M), ("entropy", s.s / M)):
+                out[key][idx] = value
+        result = {k: _shaped(v, shape) for k, v in out.items()}
+        result["extrapolated"] = _shaped(cold & np.isfinite(out["density"]), shape)
+        return result
