@@ -1,0 +1,58 @@
+"""A small table of already formatted cells, rendered for the terminal, Markdown, HTML or CSV."""
+
+from __future__ import annotations
+
+import csv
+import html
+import io
+from dataclasses import dataclass
+
+
+@dataclass(frozen=True, slots=True)
+class Table:
+    headers: list[str]
+    rows: list[list[str]]
+    note: str = ""
+    """A line shown under the table (e.g. how many rows were left out)."""
+
+
+@dataclass(frozen=True, slots=True)
+class Section:
+    title: str
+    table: Table
+
+
+def render_text(table: Table) -> str:
+    """Columns padded to their widest cell, numbers and text alike left-aligned."""
+    cells = [table.headers, *table.rows]
+    widths = [max(len(row[i]) for row in cells) for i in range(len(table.headers))]
+    lines = ["  ".join(cell.ljust(width) for cell, width in zip(row, widths)).rstrip() for row in cells]
+    lines.insert(1, "  ".join("-" * width for width in widths))
+    return "\n".join(lines + ([table.note] if table.note else []))
+
+
+def render_markdown(table: Table) -> str:
+    def line(row: list[str]) -> str:
+        return "| " + " | ".join(cell.replace("|", "\\|") for cell in row) + " |"
+
+    lines = [line(table.headers), "|" + "---|" * len(table.headers), *map(line, table.rows)]
+    return "\n".join(lines + (["", table.note] if table.note else []))
+
+
+def render_html(table: Table) -> str:
+    head = "".join(f"<th>{html.escape(h)}</th>" for h in table.headers)
+    body = "".join("<tr>" + "".join(f"<td>{html.escape(c)}</td>" for c in row) + "</tr>" for row in table.rows)
+    note = f"<p class=\"note\">{html.escape(table.note)}</p>" if table.note else ""
+    return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>{note}"
+
+
+def render_csv(table: Table) -> str:
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(table.headers)
+    writer.writerows(table.rows)
+    return buffer.getvalue()
+
+
+def render_sections_text(sections: list[Section]) -> str:
+    return "\n\n".join(f"{s.title}\n{render_text(s.table)}" for s in sections)
