@@ -1,0 +1,1 @@
+"""The screen's widgets, one per module; their look lives in ../app.tcss."""

@@ -1,0 +1,99 @@
+"""One margin as a line: what it is, how much is left, a bar against its alarm limit, the trend,
+and the predicted time to the boundary."""
+
+from __future__ import annotations
+
+import math
+
+from textual.content import Content
+
+from thermo.units import format_number
+from tui.screen.display import duration, trend
+from tui.screen.widgets.text_panel import TextPanel
+
+#: the bar's full scale is this many alarm limits, so the limit mark sits at a quarter of it
+FULL_SCALE_LIMITS = 4.0
+#: full scale when no limit is configured, in the margin's SI unit
+DEFAULT_FULL_SCALE = {"dT_saturation_K": 20.0, "dp_saturation_Pa": 10e5, "dT_solid_K": 20.0, "critical_distance": 0.5}
+LABEL_WIDTH = 12
+VALUE_WIDTH = 9
+#: cells kept for the trend and the time to the boundary, so the bars do not jump
+TAIL_WIDTH = 10
+_EIGHTHS = " ▏▎▍▌▋▊▉"
+ABNORMAL = "bold reverse"
+
+
+def margin_label(name: str, value: float) -> str:
+    """The margin's name as an operator says it; the sign picks the word."""
+    if name == "dT_saturation_K":
+        return "sat. margin" if math.isnan(value) else ("superheat" if value >= 0 else "subcooling")
+    if name == "dp_saturation_Pa":
+        return "p to curve" if math.isnan(value) else ("p over sat." if value >= 0 else "p under sat.")
+    if name == "dT_solid_K":
+        return "to solid" if math.isnan(value) or value >= 0 else "in solid"
+    return "to critical"
+
+
+def margin_value(name: str, value: float, T_unit, p_unit) -> str:
+    """The margin's size (its sign is in the label) in the chosen units."""
+    if math.isnan(value):
+        return "n/a"
+    if name == "dp_saturation_Pa":
+        return f"{format_number(float(p_unit.difference_from_si(abs(value))), 3)} {p_unit.symbol}"
+    if name == "critical_distance":
+        return format_number(value, 3)
+    return f"{format_number(float(T_unit.difference_from_si(abs(value))), 3)} {T_unit.difference_label}"
+
+
+def bar(fraction: float, limit_fraction: float, width: int) -> str:
+    """A bar `width` cells long filled to `fraction` (eighths of a cell), a '┊' at the limit."""
+    if width <= 0:
+        return ""
+    filled = max(0.0, min(fraction, 1.0)) * width
+    whole = int(filled)
+    cells = ["█"] * whole
+    if whole < width:
+        cells.append(_EIGHTHS[int((filled - whole) * 8)])
+    cells += ["·"] * (width - len(cells))
+    mark = int(limit_fraction * width)
+    if 0 <= mark < width and cells[mark] in " ·":
+        cells[mark] = "┊"
+    return "".join(cells)
+
+
+class MarginGauge(TextPanel):
+    """Shows one entry of `Reading.margins`; within its limit the line is marked in words and reverse video."""
+
+    DEFAULT_CSS = """
+    MarginGauge { height: 1; }
+    """
+
+    def __init__(self, margin: str, *, id: str | None = None) -> None:
+        super().__init__(id=id)
+        self.margin = margin
+
+    def show(self, value: float, rate: float, time_left: float, limit: float, T_unit, p_unit) -> None:
+        name = self.margin
+        distance = abs(value)
+        full_scale = FULL_SCALE_LIMITS * limit if limit > 0 else DEFAULT_FULL_SCALE[name]
+        beyond = limit > 0 and distance <= limit
+        self.set_class(beyond, "-beyond")
+        label = margin_label(name, value).ljust(LABEL_WIDTH)
+        number = margin_value(name, value, T_unit, p_unit).rjust(VALUE_WIDTH)
+        direction = trend(rate, value)
+        closing = "closing" in direction
+        tail = (f" {direction[0]} {duration(time_left)}" if closing else f" {direction}").ljust(TAIL_WIDTH)
+        width = self.content_region.width or 40
+        bar_width = max(width - len(label) - len(number) - len(tail) - 3, 3)
+        fraction = distance / full_scale if math.isfinite(distance) else 0.0
+        limit_fraction = limit / full_scale if limit > 0 else -1.0
+        self.put(
+            Content.assemble(
+                ("! " if beyond else "  ", ABNORMAL if beyond else ""),
+                (label, ""),
+                (number, "bold"),
+                " ",
+                (bar(fraction, limit_fraction, bar_width), ABNORMAL if beyond else "dim"),
+                (tail, ABNORMAL if beyond and closing else ""),
+            )
+        )
