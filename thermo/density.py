@@ -52,9 +52,9 @@ def peng_robinson_density(T, p, T_c: float, p_c: float, omega: float, R: float, 
 
 
 def _take(tree, keep: np.ndarray):
-    """The rows ``keep`` of every array in a nested list/tuple of per-state arrays."""
+    """The states ``keep`` (last axis) of every array in a nested list/tuple of per-state arrays."""
     if isinstance(tree, np.ndarray):
-        return tree[keep]
+        return tree[..., keep]
     return type(tree)(_take(x, keep) for x in tree)
 
 
@@ -68,28 +68,40 @@ class DensitySolver:
         self.delta_c = rho_c / eos.rho_r
         self.delta_max = rho_max / eos.rho_r
 
-    def solve(self, T: np.ndarray, p: np.ndarray, p_sat: np.ndarray, rho_liquid: np.ndarray) -> np.ndarray:
+    def solve(self, T: np.ndarray, p: np.ndarray, p_sat: np.ndarray, rho_liquid: np.ndarray,
+              rho_vapor: np.ndarray) -> np.ndarray:
         """Density [mol/m3] at 1-D arrays T [K], p [Pa].
 
-        p_sat [Pa] and rho_liquid [mol/m3] are the saturation pressure and saturated-liquid density
-        at T (NaN at T >= T_c): the liquid root is sought where p > p_sat, the vapor root where
-        p <= p_sat, the single fluid root at and above T_c.
+        p_sat [Pa], rho_liquid and rho_vapor [mol/m3] describe the saturation curve at T (NaN at
+        T >= T_c; p_sat = inf marks vapor below the triple point): the liquid root is sought where
+        p > p_sat, the vapor root where p <= p_sat, the single fluid root at and above T_c.
         """
         eos = self.eos
         below = T < self.T_c
         liquid = below & (p > p_sat)
         vapor = below & ~liquid
         pi = p / (eos.rho_r * eos.R * T)
-        start = np.where(liquid, rho_liquid / eos.rho_r, pi)
-        dense = ~below
-        if dense.any():
-            pr = peng_robinson_density(T[dense], p[dense], self.T_c, self.p_c, self.omega, eos.R, liquid=False)
-            start[dense] = pr / eos.rho_r
+        # the cubic's density, corrected by the ratio of the reference equation's saturated
+        # density to the cubic's on the same side of the curve, then kept on that side of it
+        start = self._peng_robinson(T, p, liquid) / eos.rho_r
+        known = np.isfinite(p_sat)
+        rho_sat = np.where(liquid, rho_liquid, rho_vapor)
+        start[known] *= rho_sat[known] / self._peng_robinson(T[known], p_sat[known], liquid[known])
+        start = np.where(liquid, np.fmax(start, rho_liquid / eos.rho_r), start)
+        start = np.where(vapor & known, np.fmin(start, rho_vapor / eos.rho_r), start)
         lo = np.where(liquid, self.delta_c, 0.0)
         hi = np.where(vapor, self.delta_c, self.delta_max)
         delta, slope = self._newton(eos.T_r / T, pi, np.clip(start, lo, hi), lo, hi)
         good = (slope > 0) & np.where(liquid, delta > self.delta_c, True) & np.where(vapor, delta < self.delta_c, True)
         return np.where(good, delta * eos.rho_r, np.nan)
+
+    def _peng_robinson(self, T, p, liquid) -> np.ndarray:
+        """Peng-Robinson density [mol/m3], liquid root where ``liquid``."""
+        rho = np.empty_like(T)
+        for branch in (True, False):
+            m = liquid == branch
+            rho[m] = peng_robinson_density(T[m], p[m], self.T_c, self.p_c, self.omega, self.eos.R, liquid=branch)
+        return rho
 
     def _newton(self, tau, pi, delta, lo, hi):
         """Safeguarded Newton on delta(1 + delta ar_d) = pi; returns delta and the reduced slope."""
@@ -107,9 +119,9 @@ class DensitySolver:
             hi = np.where(f > 0, np.minimum(hi, delta), hi)
             with np.errstate(divide="ignore", invalid="ignore"):
                 new = delta - f / slope
-            accepted = stable & (new > lo) & (new < hi)
+            accepted = stable & (new >= lo) & (new <= hi)
             new = np.where(accepted, new, 0.5 * (lo + hi))
-            done = accepted & (np.abs(new - delta) <= STEP_TOLERANCE * new) | (f == 0)
+            done = np.abs(new - delta) <= STEP_TOLERANCE * new
             failed = ~np.isfinite(f)
             if done.any() or failed.any():
                 result[index[done]] = new[done]

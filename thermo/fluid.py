@@ -173,8 +173,8 @@ class Fluid:
             t = T[sl]
             p_sat = np.where(t < self.critical.T, self.saturation.pressure(np.maximum(t, self.triple.T)), np.nan)
             p_sat = np.where(t < self.triple.T, np.inf, p_sat)  # cold states are vapor by construction
-            rho_liquid = self.saturation.densities(np.clip(t, self.triple.T, self.critical.T))[0]
-            out[sl] = self._solver.solve(t, p[sl], p_sat, rho_liquid)
+            rho_liquid, rho_vapor = self.saturation.densities(np.clip(t, self.triple.T, self.critical.T))
+            out[sl] = self._solver.solve(t, p[sl], p_sat, rho_liquid, rho_vapor)
         return out
 
     def density(self, T, p):

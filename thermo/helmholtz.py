@@ -9,7 +9,8 @@ Evaluators return *scaled* derivatives (``Scaled``): a, delta a_d, delta^2 a_dd,
 tau^2 a_tt, delta tau a_dt. They are what the property formulas use (Span 2000, Table 3.3)
 and they stay finite at delta -> 0. Every input is a 1-D float array of states; the tau-only
 factors of a block are computed once by ``prepare(tau)`` and reused by ``delta_part`` inside
-the density solver's Newton loop.
+the density solver's Newton loop. Per-term arrays are term-major, shape (K terms, N states), so
+that sums over terms run along contiguous rows.
 
 Term families (n, d, t, l, eta, epsilon, beta, gamma, a, b, A, B, C, D: block arrays):
 - power: n delta^d tau^t [exp(-delta^l) when l > 0]; Span (2000), Eq. 3.49.
@@ -76,17 +77,21 @@ def _integer(values: np.ndarray, name: str, kind: str) -> np.ndarray:
 
 
 def _delta_powers(delta: np.ndarray, highest: int) -> np.ndarray:
-    """delta^0 .. delta^highest by repeated multiplication, shape (N, highest + 1)."""
-    powers = np.empty((delta.size, highest + 1))
-    powers[:, 0] = 1.0
+    """delta^0 .. delta^highest by repeated multiplication, shape (highest + 1, N)."""
+    powers = np.empty((highest + 1, delta.size))
+    powers[0] = 1.0
     for j in range(1, highest + 1):
-        np.multiply(powers[:, j - 1], delta, out=powers[:, j])
+        np.multiply(powers[j - 1], delta, out=powers[j])
     return powers
 
 
+def _column(values: np.ndarray) -> np.ndarray:
+    return values[:, None]
+
+
 def _tau_powers(tau: np.ndarray, t: np.ndarray) -> np.ndarray:
-    """tau^t for every state and term, shape (N, K)."""
-    return np.exp(np.log(tau)[:, None] * t)
+    """tau^t for every term and state, shape (K, N)."""
+    return np.exp(_column(t) * np.log(tau))
 
 
 class PowerTerms:
@@ -107,29 +112,29 @@ class PowerTerms:
             sl = np.flatnonzero(self.l == value)
             sl = slice(sl[0], sl[-1] + 1)
             d_, t_ = self.d[sl].astype(float), self.t[sl]
-            weights = np.stack([np.ones_like(d_), d_, d_ * (d_ - 1), 2 * d_ - 1, t_, t_ * (t_ - 1), d_ * t_], axis=1)
+            weights = np.stack([np.ones_like(d_), d_, d_ * (d_ - 1), 2 * d_ - 1, t_, t_ * (t_ - 1), d_ * t_])
             self.groups.append((int(value), sl, weights))
 
     def prepare(self, tau: np.ndarray) -> np.ndarray:
-        return self.n * _tau_powers(tau, self.t)
+        return _column(self.n) * _tau_powers(tau, self.t)
 
-    def _sums(self, delta: np.ndarray, prepared: np.ndarray, columns: slice):
+    def _sums(self, delta: np.ndarray, prepared: np.ndarray, rows: slice):
         powers = _delta_powers(delta, self.highest)
-        terms = prepared * powers[:, self.d]
+        terms = prepared * powers[self.d]
         for l, sl, weights in self.groups:
-            sums = terms[:, sl] @ weights[:, columns]
+            sums = weights[rows] @ terms[sl]
             if l == 0:
                 yield l, None, sums
             else:
-                x = powers[:, l]
-                yield l, x, sums * np.exp(-x)[:, None]
+                x = powers[l]
+                yield l, x, sums * np.exp(-x)
 
     def delta_part(self, delta: np.ndarray, prepared: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(delta a_d, delta^2 a_dd) with the tau factors of ``prepare``."""
         ad = np.zeros_like(delta)
         add = np.zeros_like(delta)
         for l, x, s in self._sums(delta, prepared, slice(0, 4)):
-            one, dd, ddm1, two_dm1 = s.T
+            one, dd, ddm1, two_dm1 = s
             if x is None:
                 ad += dd
                 add += ddm1
@@ -142,7 +147,7 @@ class PowerTerms:
     def scaled(self, delta: np.ndarray, prepared: np.ndarray) -> Scaled:
         a, ad, add, at, att, adt = (np.zeros_like(delta) for _ in range(6))
         for l, x, s in self._sums(delta, prepared, slice(0, 7)):
-            one, dd, ddm1, two_dm1, t, ttm1, dt = s.T
+            one, dd, ddm1, two_dm1, t, ttm1, dt = s
             lx = 0.0 if x is None else l * x
             a += one
             ad += dd - lx * one
@@ -159,8 +164,8 @@ def _bell_delta(delta: np.ndarray, d: np.ndarray, eta: np.ndarray, epsilon: np.n
     With f that factor, delta f' = f g and delta^2 f'' = f g2, g = d - 2 eta delta (delta-epsilon),
     g2 = g^2 - d - 2 eta delta^2.
     """
-    x = delta[:, None]
-    dx = x - epsilon
+    d, eta, x = _column(d), _column(eta), delta
+    dx = x - _column(epsilon)
     f = np.exp(d * np.log(x) - eta * dx * dx)
     g = d - 2 * eta * x * dx
     return f, g, g * g - d - 2 * eta * x * x
@@ -175,11 +180,9 @@ class _BellTerms:
 
     def __init__(self, block: dict):
         c = _arrays(block, self.fields, self.kind)
-        self.n, self.t = c["n"], c["t"]
         self.d = _integer(c["d"], "d", self.kind).astype(float)
         self.eta, self.epsilon = self._delta_eta(c["eta"]), c["epsilon"]
-        self.beta, self.gamma = c["beta"], c["gamma"]
-        self.coefficients = c
+        self.coefficients = {k: _column(v) for k, v in c.items()}
 
     @staticmethod
     def _delta_eta(eta: np.ndarray) -> np.ndarray:
@@ -190,19 +193,19 @@ class _BellTerms:
 
     def prepare(self, tau: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         factor, h, h2 = self._tau_factor(tau)
-        return self.n * factor, h, h2
+        return self.coefficients["n"] * factor, h, h2
 
     def delta_part(self, delta: np.ndarray, prepared) -> tuple[np.ndarray, np.ndarray]:
         f, g, g2 = _bell_delta(delta, self.d, self.eta, self.epsilon)
         a = prepared[0] * f
-        return (a * g).sum(axis=1), (a * g2).sum(axis=1)
+        return (a * g).sum(axis=0), (a * g2).sum(axis=0)
 
     def scaled(self, delta: np.ndarray, prepared) -> Scaled:
         nf, h, h2 = prepared
         f, g, g2 = _bell_delta(delta, self.d, self.eta, self.epsilon)
         a = nf * f
         ag = a * g
-        return Scaled(a.sum(1), ag.sum(1), (a * g2).sum(1), (a * h).sum(1), (a * h2).sum(1), (ag * h).sum(1))
+        return Scaled(a.sum(0), ag.sum(0), (a * g2).sum(0), (a * h).sum(0), (a * h2).sum(0), (ag * h).sum(0))
 
 
 class GaussianTerms(_BellTerms):
@@ -212,11 +215,11 @@ class GaussianTerms(_BellTerms):
     kind = "gaussian"
 
     def _tau_factor(self, tau: np.ndarray):
-        x = tau[:, None]
-        dx = x - self.gamma
-        factor = np.exp(self.t * np.log(x) - self.beta * dx * dx)
-        h = self.t - 2 * self.beta * x * dx
-        return factor, h, h * h - self.t - 2 * self.beta * x * x
+        c = self.coefficients
+        t, beta, dx = c["t"], c["beta"], tau - c["gamma"]
+        factor = np.exp(t * np.log(tau) - beta * dx * dx)
+        h = t - 2 * beta * tau * dx
+        return factor, h, h * h - t - 2 * beta * tau * tau
 
 
 class GaoBTerms(_BellTerms):
@@ -234,14 +237,14 @@ class GaoBTerms(_BellTerms):
         return -eta
 
     def _tau_factor(self, tau: np.ndarray):
-        x = tau[:, None]
-        dx = x - self.gamma
-        u = self.beta * dx * dx + self.coefficients["b"]
-        q1 = -2 * self.beta * dx / (u * u)  # d(1/u)/dtau
-        q2 = -2 * self.beta / (u * u) + 8 * self.beta**2 * dx * dx / (u * u * u)
-        factor = np.exp(self.t * np.log(x) + 1 / u)
-        h = self.t + x * q1
-        return factor, h, h * h - self.t + x * x * q2
+        c = self.coefficients
+        t, beta, dx = c["t"], c["beta"], tau - c["gamma"]
+        u = beta * dx * dx + c["b"]
+        q1 = -2 * beta * dx / (u * u)  # d(1/u)/dtau
+        q2 = -2 * beta / (u * u) + 8 * beta**2 * dx * dx / (u * u * u)
+        factor = np.exp(t * np.log(tau) + 1 / u)
+        h = t + tau * q1
+        return factor, h, h * h - t + tau * tau * q2
 
 
 class NonAnalyticTerms:
@@ -249,14 +252,16 @@ class NonAnalyticTerms:
 
     Wagner & Pruss (2002), Eq. 6.5 with the derivatives of Table 6.5, written with
     s = (delta-1)^2 so that delta = 1 needs no special case (dDelta/ddelta = (delta-1) X).
+    The terms are evaluated only for states where the exponent of psi exceeds
+    ``NEGLIGIBLE_EXPONENT``; elsewhere every scaled derivative of them is below 1e-15 for
+    delta < 4 (checked in the tests) and counts as zero.
     """
 
     fields = ("n", "a", "b", "beta", "A", "B", "C", "D")
+    NEGLIGIBLE_EXPONENT = -50.0
 
     def __init__(self, block: dict):
-        c = _arrays(block, self.fields, "nonanalytic")
-        self.n, self.a, self.b, self.beta = c["n"], c["a"], c["b"], c["beta"]
-        self.A, self.B, self.C, self.D = c["A"], c["B"], c["C"], c["D"]
+        self.c = {k: _column(v) for k, v in _arrays(block, self.fields, "nonanalytic").items()}
 
     def prepare(self, tau: np.ndarray) -> np.ndarray:
         return tau
@@ -266,25 +271,35 @@ class NonAnalyticTerms:
         return s.d, s.dd
 
     def scaled(self, delta: np.ndarray, tau: np.ndarray) -> Scaled:
-        n, a, b, beta, A, B, C, D = self.n, self.a, self.b, self.beta, self.A, self.B, self.C, self.D
-        x, y = delta[:, None], tau[:, None]
+        C, D = self.c["C"], self.c["D"]
+        exponent = -C * (delta - 1) ** 2 - D * (tau - 1) ** 2
+        near = np.flatnonzero((exponent > self.NEGLIGIBLE_EXPONENT).any(axis=0))
+        out = Scaled(*(np.zeros_like(delta) for _ in Scaled._fields))
+        if near.size:
+            for total, part in zip(out, self._terms(delta[near], tau[near])):
+                total[near] = part
+        return out
+
+    def _terms(self, x: np.ndarray, y: np.ndarray) -> Scaled:
+        n, a, b, beta, A, B, C, D = (self.c[k] for k in self.fields)
         dm1, tm1 = x - 1, y - 1
-        s = dm1 * dm1
+        s = np.maximum(dm1 * dm1, 1e-300)  # powers below are of s^e/s with e > 1: 0 at delta = 1
         half = 1 / (2 * beta)
-        theta = -tm1 + A * s**half
-        Dl = theta * theta + B * s**a
-        X = A * theta * (2 / beta) * s ** (half - 1) + 2 * B * a * s ** (a - 1)
+        s_half, s_a = s**half, s**a
+        theta = -tm1 + A * s_half
+        Dl = theta * theta + B * s_a
+        X = (A * theta * (2 / beta) * s_half + 2 * B * a * s_a) / s
         Dl_d = dm1 * X
-        Dl_dd = (X + 4 * B * a * (a - 1) * s ** (a - 1) + 2 * A**2 / beta**2 * s ** (2 * half - 1)
-                 + A * theta * (4 / beta) * (half - 1) * s ** (half - 1))
+        Dl_dd = (X + (4 * B * a * (a - 1) * s_a + 2 * A**2 / beta**2 * s_half * s_half
+                      + A * theta * (4 / beta) * (half - 1) * s_half) / s)
         Db = Dl**b
-        Db1 = b * Dl ** (b - 1)  # dDelta^b/dDelta
-        Db2 = b * (b - 1) * Dl ** (b - 2)
+        Db1 = b * Db / Dl  # dDelta^b/dDelta
+        Db2 = (b - 1) * Db1 / Dl
         Db_d = Db1 * Dl_d
         Db_dd = Db1 * Dl_dd + Db2 * Dl_d * Dl_d
         Db_t = -2 * theta * Db1
         Db_tt = 2 * Db1 + 4 * theta * theta * Db2
-        Db_dt = -A * b * (2 / beta) * Dl ** (b - 1) * dm1 * s ** (half - 1) - 2 * theta * Db2 * Dl_d
+        Db_dt = -A * (2 / beta) * Db1 * dm1 * s_half / s - 2 * theta * Db2 * Dl_d
         psi = np.exp(-C * s - D * tm1 * tm1)
         psi_d = -2 * C * dm1 * psi
         psi_dd = (2 * C * s - 1) * 2 * C * psi
@@ -297,8 +312,8 @@ class NonAnalyticTerms:
         phi_t = n * x * (Db_t * psi + Db * psi_t)
         phi_tt = n * x * (Db_tt * psi + 2 * Db_t * psi_t + Db * psi_tt)
         phi_dt = n * (Db * (psi_t + x * psi_dt) + x * Db_d * psi_t + Db_t * (psi + x * psi_d) + Db_dt * x * psi)
-        return Scaled(phi.sum(1), (x * phi_d).sum(1), (x * x * phi_dd).sum(1), (y * phi_t).sum(1),
-                      (y * y * phi_tt).sum(1), (x * y * phi_dt).sum(1))
+        return Scaled(phi.sum(0), (x * phi_d).sum(0), (x * x * phi_dd).sum(0), (y * phi_t).sum(0),
+                      (y * y * phi_tt).sum(0), (x * y * phi_dt).sum(0))
 
 
 RESIDUAL_FAMILIES = {"power": PowerTerms, "gaussian": GaussianTerms, "nonanalytic": NonAnalyticTerms,
@@ -385,8 +400,8 @@ class _IdealPower:
         self.n, self.t = c["n"], c["t"]
 
     def scaled(self, tau):
-        terms = self.n * _tau_powers(tau, self.t)
-        return terms.sum(1), terms @ self.t, terms @ (self.t * (self.t - 1))
+        terms = _column(self.n) * _tau_powers(tau, self.t)
+        return terms.sum(0), self.t @ terms, (self.t * (self.t - 1)) @ terms
 
 
 class _IdealPlanckEinstein:
@@ -397,10 +412,10 @@ class _IdealPlanckEinstein:
         self.n, self.t = c["n"], c["t"]
 
     def scaled(self, tau):
-        x = self.t * tau[:, None]
+        x = _column(self.t) * tau
         e = np.exp(-x)
-        r = e / (1 - e)  # x e^-x / (1 - e^-x) per unit x
-        return (np.log1p(-e) @ self.n, (x * r) @ self.n, (-(x * x) * r / (1 - e)) @ self.n)
+        r = e / (1 - e)
+        return self.n @ np.log1p(-e), self.n @ (x * r), self.n @ (-(x * x) * r / (1 - e))
 
 
 IDEAL_FAMILIES = {"lead": _IdealLead, "offset": _IdealLead, "log_tau": _IdealLogTau, "power": _IdealPower,
