@@ -61,6 +61,9 @@ class RigsideApp(App):
     def compute_curves(self, name: str) -> None:
         self.post_message(CurvesReady(fluid_curves(thermo.fluid(name))))
 
+    def on_unmount(self) -> None:
+        self.session.stop()
+
     def on_view_changed(self, message: ViewChanged) -> None:
         self.latest_view = message.view
 

@@ -80,15 +80,16 @@ class BrailleCanvas:
         # Segments wholly off the grid or broken by NaN draw nothing; cap the rest so one
         # absurd segment cannot allocate millions of dots.
         limit = 4 * (self.dot_columns + self.dot_rows)
-        steps = np.where(np.isfinite(span), np.minimum(np.ceil(span), limit), 0).astype(np.intp) + 1
+        steps = np.where(np.isfinite(span), np.clip(np.ceil(span), 1, limit), 0).astype(np.intp)
         starts = np.repeat(np.arange(dc.size), steps)
         offsets = np.arange(starts.size) - np.repeat(np.cumsum(steps) - steps, steps)
         fraction = offsets / np.repeat(steps, steps)
         cols = col[:-1][starts] + dc[starts] * fraction
         rows = row[:-1][starts] + dr[starts] * fraction
         if every > 1:
-            cols, rows = cols[::every], rows[::every]
-        self.points(np.append(cols, col[-1]), np.append(rows, row[-1]), ink)
+            self.points(cols[::every], rows[::every], ink)
+        else:  # the runs stop short of each segment's end: add the vertices
+            self.points(np.concatenate([cols, col]), np.concatenate([rows, row]), ink)
 
     def hline(self, row: float, ink: int, *, every: int = 1) -> None:
         """A horizontal line across the whole grid at dot row `row`."""

@@ -16,6 +16,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 
 from tui.acquire.sample import SourceStatus
+from tui.monitor.alarms import AlarmStatus
 from tui.monitor.model import Event, Reading
 from tui.screen.curves import Isotherm
 
@@ -25,17 +26,6 @@ TRAIL_LENGTH = 240
 EVENT_LENGTH = 200
 #: the sample rate is measured over this many recent samples (on the source's own time axis)
 RATE_WINDOW = 64
-
-
-@dataclass(frozen=True, slots=True)
-class AlarmRow:
-    """One alarm that wants attention, in ISA-18.2 terms."""
-
-    condition: str
-    state: str
-    """"unacknowledged", "acknowledged", "returned-unacknowledged" or "shelved"."""
-    priority: str = ""
-    message: str = ""
 
 
 @dataclass(frozen=True, slots=True)
@@ -69,7 +59,8 @@ class LiveView:
     trail_T: np.ndarray = field(default_factory=lambda: np.empty(0))
     trail_p: np.ndarray = field(default_factory=lambda: np.empty(0))
     events: tuple[Event, ...] = ()
-    alarms: tuple[AlarmRow, ...] = ()
+    alarms: tuple[AlarmStatus, ...] = ()
+    """Alarm points that are not normal (unacknowledged, acknowledged, returned-unacknowledged, shelved)."""
     samples: int = 0
     rate_hz: float = math.nan
     dropped: int = 0

@@ -77,6 +77,8 @@ class Session:
         self.feed = LiveFeed(fluid=self.fluid.name, source=label or source.description, limits=margin_limits(config))
         self._lock = threading.Lock()
         self._stop = threading.Event()
+        self._finished = threading.Event()
+        self._finished.set()  # until run() starts
         self._publish: Callable[[LiveView], object] = lambda view: None
         self._started_wall = time.time()
         self._properties_at = -math.inf
@@ -94,6 +96,7 @@ class Session:
     def run(self, publish: Callable[[LiveView], object], cancelled: Callable[[], bool]) -> None:
         """Process the source until it ends or `stop()`; `publish` gets every new view."""
         self._publish = publish
+        self._finished.clear()
         try:
             for batch in self.source.batches(self._stop):
                 if cancelled():
@@ -103,10 +106,19 @@ class Session:
                 publish(view)
         finally:
             self._stop.set()
+            self._finished.set()
 
     def stop(self) -> None:
         """Ask the loop to end (the source wakes within 0.2 s)."""
         self._stop.set()
+
+    def close(self, wait_s: float) -> None:
+        """Stop, wait up to `wait_s` for the loop to let go, then close the source and the run log."""
+        self.stop()
+        self._finished.wait(wait_s)
+        self.source.close()
+        if self.recorder is not None:
+            self.recorder.close()
 
     def _process(self, batch) -> LiveView:
         samples = [item for item in batch if isinstance(item, Sample)]

@@ -8,7 +8,7 @@ from collections.abc import Sequence
 from textual.content import Content
 from textual.reactive import reactive
 
-from tui.screen.live import AlarmRow
+from tui.monitor.alarms import AlarmStatus
 from tui.screen.widgets.text_panel import TextPanel
 
 #: state -> (word, style); unacknowledged alarms stand out, the rest are quieter
@@ -33,17 +33,17 @@ class AlarmList(TextPanel):
 
     def __init__(self, *, id: str | None = None) -> None:
         super().__init__(id=id)
-        self._rows: tuple[AlarmRow, ...] = ()
+        self._rows: tuple[AlarmStatus, ...] = ()
 
     @property
-    def selected(self) -> AlarmRow | None:
+    def selected(self) -> AlarmStatus | None:
         return self._rows[self.cursor] if self._rows else None
 
     @property
-    def rows(self) -> tuple[AlarmRow, ...]:
+    def rows(self) -> tuple[AlarmStatus, ...]:
         return self._rows
 
-    def show(self, rows: Sequence[AlarmRow]) -> None:
+    def show(self, rows: Sequence[AlarmStatus]) -> None:
         self._rows = tuple(rows)
         self.set_class(any(r.state == "unacknowledged" for r in self._rows), "-unacknowledged")
         self.cursor = min(self.cursor, max(len(self._rows) - 1, 0))

@@ -45,6 +45,18 @@ def margin_value(name: str, value: float, T_unit, p_unit) -> str:
     return f"{format_number(float(T_unit.difference_from_si(abs(value))), 3)} {T_unit.difference_label}"
 
 
+def rate_text(name: str, rate: float, T_unit, p_unit) -> str:
+    """A margin's rate of change per minute in the chosen units, signed."""
+    if not math.isfinite(rate):
+        return "rate unknown until the trend window fills"
+    per_minute = rate * 60.0
+    if name == "dp_saturation_Pa":
+        return f"{format_number(float(p_unit.difference_from_si(per_minute)), 3)} {p_unit.symbol}/min"
+    if name == "critical_distance":
+        return f"{format_number(per_minute, 3)} /min"
+    return f"{format_number(float(T_unit.difference_from_si(per_minute)), 3)} {T_unit.difference_label}/min"
+
+
 def bar(fraction: float, limit_fraction: float, width: int) -> str:
     """A bar `width` cells long filled to `fraction` (eighths of a cell), a '┊' at the limit."""
     if width <= 0:
@@ -87,13 +99,17 @@ class MarginGauge(TextPanel):
         bar_width = max(width - len(label) - len(number) - len(tail) - 3, 3)
         fraction = distance / full_scale if math.isfinite(distance) else 0.0
         limit_fraction = limit / full_scale if limit > 0 else -1.0
-        self.put(
-            Content.assemble(
-                ("! " if beyond else "  ", ABNORMAL if beyond else ""),
-                (label, ""),
-                (number, "bold"),
-                " ",
-                (bar(fraction, limit_fraction, bar_width), ABNORMAL if beyond else "dim"),
-                (tail, ABNORMAL if beyond and closing else ""),
-            )
+        line = Content.assemble(
+            ("! " if beyond else "  ", ABNORMAL if beyond else ""),
+            (label, ""),
+            (number, "bold"),
+            " ",
+            (bar(fraction, limit_fraction, bar_width), ABNORMAL if beyond else "dim"),
+            (tail, ABNORMAL if beyond and closing else ""),
         )
+        if self.content_region.height >= 2:
+            detail = f"{' ' * (2 + LABEL_WIDTH)}{rate_text(name, rate, T_unit, p_unit)}"
+            if closing:
+                detail += f", at the boundary in {duration(time_left)}"
+            line = Content.assemble(line, "\n", (detail, "dim"))
+        self.put(line)
