@@ -108,21 +108,31 @@ def ideal_block(block: dict, Tc: float) -> dict:
     raise ValueError(f"unhandled ideal-gas block {kind}")
 
 
-def melting_block(line: dict | None) -> dict:
+#: (fluid, part index) -> fields that differ from the original publication in CoolProp's data
+MELTING_CORRECTIONS = {
+    # IAPWS R14-08(2011) eq. (4): ice VI melts from p* = 632.4 MPa at T* = 273.31 K, where ice V
+    # ends (CoolProp 8 carries 623.4 MPa, which leaves a 9 MPa step between the two ices)
+    ("H2O", 3): {"p_0": 632.4e6},
+}
+
+
+def melting_block(key: str, line: dict | None) -> dict:
     if line is None:
-        return {"published": False,
+        return {"published": False, "type": "triple_temperature",
                 "note": "no melting equation in the reference paper; the melting temperature is taken as the "
-                        "triple-point temperature at every pressure (approximate)"}
+                        "triple-point temperature at every pressure (approximate: real melting curves rise "
+                        "with pressure, so solid may form above the triple-point temperature at high pressure)"}
     kinds = {"polynomial_in_Tr": "reduced_power_sum", "polynomial_in_Theta": "theta_power_sum",
              "Simon": "simon_glatzel"}
     parts = []
-    for part in line["parts"]:
+    for index, part in enumerate(line["parts"]):
         out = {"T_min": min(part["T_min"], part["T_max"]), "T_max": max(part["T_min"], part["T_max"]),
                "T_0": part["T_0"], "p_0": part["p_0"]}
         if line["type"] == "Simon":
             out.update(a=part["a"], c=part["c"])
         else:
             out.update(a=part["a"], t=part["t"])
+        out.update(MELTING_CORRECTIONS.get((key, index), {}))
         parts.append(out)
     return {"published": True, "type": kinds[line["type"]], "source": MELTING_SOURCES[line["BibTeX"]],
             "units": {"T": "K", "p": "Pa"}, "parts": parts}
@@ -174,7 +184,7 @@ def extract(key: str) -> dict:
             "liquid_density": ancillary(anc["rhoL"]),
             "vapor_density": ancillary(anc["rhoV"]),
         },
-        "melting": melting_block(anc.get("melting_line")),
+        "melting": melting_block(key, anc.get("melting_line")),
     }
 
 
