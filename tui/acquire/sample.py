@@ -54,6 +54,10 @@ class Sample:
     quality: Quality = Quality.OK
     reasons: tuple[str, ...] = field(default=())
     """Why the quality is not ok, e.g. ("pressure outside span 0..100 bar",)."""
+    pressure_mA: float = float("nan")
+    """Loop current of a 4-20 mA pressure transmitter [mA], for the NAMUR NE 43 check; NaN otherwise."""
+    temperature_mA: float = float("nan")
+    """Loop current of a 4-20 mA temperature transmitter [mA]; NaN otherwise."""
 
 
 @dataclass(frozen=True, slots=True)

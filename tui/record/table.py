@@ -1,0 +1,369 @@
+"""Fast reader of run logs and of any CSV with a header: column arrays, metadata, events, bad lines.
+
+Rows are parsed by numpy's C reader (`np.loadtxt` with a quote character) in blocks; a block
+that fails is halved until the bad lines are isolated, so a clean file costs one pass and a
+garbled one only a few more, and every good row of a truncated or garbled file is read while
+each bad one is reported by its line number with a reason.
+
+CSV columns are found by name: time (`time`, `t`, `t_s`, `timestamp`, `datetime`, `date`,
+`elapsed`), pressure (`pressure...`, `p`, `pres`, `press`), temperature (`temperature...`,
+`temp`, `T`), with units from a bracketed suffix (`pressure [bar]`, `T (degC)`) or given as
+options. Time is seconds (or `[ms]`, `[min]`, `[h]`) or ISO 8601 (a time without a zone is
+taken as UTC). Results are SI: `t_s` [s from the first row], `t_wall` [s since the epoch, NaN
+when unknown], `pressure_Pa` (absolute), `temperature_K`.
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import math
+import re
+from collections.abc import Sequence
+from dataclasses import dataclass, field
+from datetime import UTC, datetime
+from pathlib import Path
+
+import numpy as np
+
+from thermo.units import STANDARD_ATMOSPHERE, UnitError
+from tui.acquire.units import pressure_map, temperature_map
+from tui.errors import UsageError
+from tui.record.recorder import COLUMNS, EVENT_PREFIX, FORMAT_LINE, META_PREFIX
+
+#: rows parsed per numpy call before bisection takes over
+BLOCK = 1 << 16
+RUN_LOG_NUMBERS = ("t_s", "t_wall", "pressure_Pa", "temperature_K", "dT_saturation_K", "dp_saturation_Pa", "dT_solid_K", "critical_distance")
+RUN_LOG_TEXTS = ("quality", "phase", "active_alarms", "reasons", "raw")
+DEFAULT_TEXTS = ("quality", "phase", "active_alarms")
+
+_TIME_NAMES = {"time", "t_s", "timestamp", "datetime", "date_time", "date", "elapsed", "seconds"}
+_PRESSURE_NAMES = {"p", "pres", "press", "pressure", "pressure_pa"}
+_TEMPERATURE_NAMES = {"temp", "temperature", "temperature_k"}
+_TIME_UNITS = {"s": 1.0, "sec": 1.0, "ms": 1e-3, "min": 60.0, "h": 3600.0}
+_NAME_UNIT = re.compile(r"^\s*(?P<name>[^\[(]*?)\s*(?:[\[(](?P<unit>.*)[\])])?\s*$")
+
+
+@dataclass
+class Table:
+    """What a log or CSV holds, in SI."""
+
+    columns: dict[str, np.ndarray]
+    """'t_s', 't_wall', 'pressure_Pa', 'temperature_K' always; a run log adds its margins and
+    text columns ('quality', 'phase', 'active_alarms'; 'reasons', 'raw' when asked)."""
+    metadata: dict = field(default_factory=dict)
+    events: list[dict] = field(default_factory=list)
+    bad_lines: list[tuple[int, str]] = field(default_factory=list)
+    """(line number from 1, reason) of every line that could not be read."""
+    is_run_log: bool = False
+    source: str = ""
+
+    def __len__(self) -> int:
+        return len(self.columns["t_s"])
+
+    def __getitem__(self, name: str) -> np.ndarray:
+        return self.columns[name]
+
+
+def read_table(
+    path: str | Path | Sequence[str | Path],
+    *,
+    pressure_unit: str | None = None,
+    temperature_unit: str | None = None,
+    time_unit: str | None = None,
+    gauge: bool = False,
+    atmosphere_Pa: float = STANDARD_ATMOSPHERE,
+    time_column: str | None = None,
+    pressure_column: str | None = None,
+    temperature_column: str | None = None,
+    texts: Sequence[str] = DEFAULT_TEXTS,
+    delimiter: str | None = None,
+) -> Table:
+    """Read a run log (or the list of its parts, see `run_parts`) or a CSV file.
+
+    Options name the units and columns a CSV does not; `texts` picks the run log's text
+    columns (add 'reasons' and 'raw' when needed: they cost memory). Raises `UsageError` for
+    a file that cannot be read or has no usable header.
+    """
+    paths = [Path(path)] if isinstance(path, str | Path) else [Path(p) for p in path]
+    if not paths:
+        raise UsageError("no file to read")
+    options = dict(
+        pressure_unit=pressure_unit, temperature_unit=temperature_unit, time_unit=time_unit, gauge=gauge,
+        atmosphere_Pa=atmosphere_Pa, time_column=time_column, pressure_column=pressure_column,
+        temperature_column=temperature_column, texts=tuple(texts), delimiter=delimiter,
+    )
+    tables = [_read_one(p, options) for p in paths]
+    if len(tables) == 1:
+        return tables[0]
+    first = tables[0]
+    names = first.columns.keys()
+    for t in tables[1:]:
+        if t.columns.keys() != names:
+            raise UsageError(f"{t.source} does not have the columns of {first.source}")
+    return Table(
+        {name: np.concatenate([t.columns[name] for t in tables]) for name in names},
+        first.metadata,
+        [e for t in tables for e in t.events],
+        [(n, f"{t.source}: {reason}") for t in tables for n, reason in t.bad_lines],
+        first.is_run_log,
+        ", ".join(t.source for t in tables),
+    )
+
+
+def _read_one(path: Path, options: dict) -> Table:
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        raise UsageError(f"cannot read {path}: {exc.strerror or exc}") from None
+    if b"\r" in data:
+        data = data.replace(b"\r\n", b"\n").replace(b"\r", b"\n")
+    complete = data.endswith(b"\n")
+    lines = data.decode("utf-8", "replace").split("\n")
+    if complete:
+        lines.pop()
+    special = _comment_lines(data)
+    is_run_log = bool(lines) and lines[0] == FORMAT_LINE
+    metadata, events, bad = {}, [], []
+    for i in special:
+        line = lines[i]
+        if line.startswith(META_PREFIX) and not metadata:
+            metadata = _json(line[len(META_PREFIX):], i, bad, "meta")
+        elif line.startswith(EVENT_PREFIX):
+            event = _json(line[len(EVENT_PREFIX):], i, bad, "event")
+            if event:
+                events.append(event)
+    data_index = np.setdiff1d(np.arange(len(lines)), special, assume_unique=True)
+    while len(data_index) and not lines[data_index[0]].strip():
+        data_index = data_index[1:]
+    if not len(data_index):
+        raise UsageError(f"{path}: no header line with column names")
+    header = lines[data_index[0]]
+    data_index = data_index[1:]
+    if is_run_log and not complete and len(data_index) and data_index[-1] == len(lines) - 1:
+        bad.append((len(lines), "truncated last line (no line end)"))
+        data_index = data_index[:-1]
+    rows = _pick(lines, data_index)
+    line_numbers = data_index + 1
+    if is_run_log:
+        columns = _read_run_log(header, rows, line_numbers, bad, options, path)
+    else:
+        columns = _read_csv(header, rows, line_numbers, bad, options, path)
+    bad.sort()
+    return Table(columns, metadata, events, bad, is_run_log, str(path))
+
+
+def _comment_lines(data: bytes) -> list[int]:
+    """Indices of the lines of `data` that start with '#'.
+
+    Found with bytes.find (a fast C search), since a log has few of them among many rows.
+    Empty lines need no search: the row parser skips them.
+    """
+    found = [0] if data[:1] == b"#" else []
+    at, line, counted = data.find(b"\n#"), 0, 0
+    while at >= 0:
+        line += data.count(b"\n", counted, at + 1)
+        counted = at + 1
+        found.append(line)
+        at = data.find(b"\n#", at + 1)
+    return found
+
+
+def _pick(items: list, index: np.ndarray) -> list:
+    """items[index] for a sorted index array, cheaply when it drops only a few."""
+    dropped = len(items) - len(index)
+    if dropped == 0:
+        return items
+    if dropped <= 1000 and len(index) > 10 * dropped:
+        keep = np.zeros(len(items), dtype=bool)
+        keep[index] = True
+        picked = list(items)
+        for i in np.flatnonzero(~keep)[::-1].tolist():
+            del picked[i]
+        return picked
+    return [items[i] for i in index.tolist()]
+
+
+def _json(text: str, i: int, bad: list, what: str) -> dict:
+    try:
+        value = json.loads(text)
+    except ValueError as exc:
+        bad.append((i + 1, f"{what} line is not JSON: {exc}"))
+        return {}
+    if not isinstance(value, dict):
+        bad.append((i + 1, f"{what} line is not a JSON object"))
+        return {}
+    return value
+
+
+def _read_run_log(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
+    names = next(csv.reader([header]))
+    missing = [c for c in COLUMNS if c not in names]
+    if missing:
+        raise UsageError(f"{path}: run log header lacks column {missing[0]!r}")
+    texts = [c for c in options["texts"] if c in RUN_LOG_TEXTS]
+    unknown = [c for c in options["texts"] if c not in RUN_LOG_TEXTS]
+    if unknown:
+        raise UsageError(f"unknown text column {unknown[0]!r}; choose from {', '.join(RUN_LOG_TEXTS)}")
+    wanted = {c: names.index(c) for c in RUN_LOG_NUMBERS}
+    text_cols = {c: names.index(c) for c in texts}
+    values, strings, good = _parse_rows(rows, numbers, names, wanted, text_cols, ",", bad)
+    return dict(zip(wanted, np.ascontiguousarray(values.T))) | dict(zip(text_cols, strings.T))
+
+
+def _read_csv(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
+    delimiter = options["delimiter"] or max((",", ";", "\t"), key=header.count)
+    names = next(csv.reader([header], delimiter=delimiter))
+    time_at, time_unit = _find(names, options["time_column"], _TIME_NAMES, "time", path)
+    p_at, p_unit = _find(names, options["pressure_column"], _PRESSURE_NAMES, "pressure", path)
+    T_at, T_unit = _find(names, options["temperature_column"], _TEMPERATURE_NAMES, "temperature", path)
+    p_unit = options["pressure_unit"] or p_unit or ("Pa" if names[p_at].strip().endswith("_Pa") else None)
+    T_unit = options["temperature_unit"] or T_unit or ("K" if names[T_at].strip().endswith("_K") else None)
+    for kind, unit, option in (("pressure", p_unit, "--pressure-unit"), ("temperature", T_unit, "--temperature-unit")):
+        if unit is None:
+            raise UsageError(f"{path}: the {kind} column has no unit: write it as '{kind} [unit]' or give {option}")
+    try:
+        p_map = pressure_map(p_unit, gauge=options["gauge"], atmosphere_Pa=options["atmosphere_Pa"])
+        T_map = temperature_map(T_unit)
+    except UnitError as exc:
+        raise UsageError(f"{path}: {exc}") from None
+    time_unit = options["time_unit"] or time_unit
+    first = _first_field(rows, time_at, delimiter)
+    iso = first is not None and _looks_iso(first)
+    wanted = {"pressure": p_at, "temperature": T_at} | ({} if iso else {"time": time_at})
+    text_cols = {"time": time_at} if iso else {}
+    values, strings, good = _parse_rows(rows, numbers, names, wanted, text_cols, delimiter, bad)
+    p = values[:, 0] * p_map.scale + p_map.offset
+    T = values[:, 1] * T_map.scale + T_map.offset
+    if iso:
+        t_wall, ok = _iso_seconds(strings[:, 0])
+        for n in numbers[good][~ok]:
+            bad.append((int(n), f"time {names[time_at]!r} is not ISO 8601"))
+        t_wall, p, T = t_wall[ok], p[ok], T[ok]
+        t_s = t_wall - t_wall[0] if len(t_wall) else t_wall
+    else:
+        if time_unit is not None and time_unit not in _TIME_UNITS:
+            raise UsageError(f"{path}: unknown time unit {time_unit!r}; use s, ms, min or h")
+        t_s = values[:, 2] * _TIME_UNITS[time_unit or "s"]
+        t_wall = np.full(len(t_s), math.nan)
+    return {"t_s": t_s, "t_wall": t_wall, "pressure_Pa": p, "temperature_K": T}
+
+
+def _find(names: list[str], given: str | None, known: set[str], what: str, path: Path) -> tuple[int, str | None]:
+    """Index and bracketed unit of the column called `given`, or of the first with a known name."""
+    for i, full in enumerate(names):
+        name, unit = _NAME_UNIT.match(full).group("name", "unit")
+        if given is not None and given.strip() in (full.strip(), name):
+            return i, unit
+        if given is None and _is_named(name, known, what):
+            return i, unit
+    if given is not None:
+        raise UsageError(f"{path}: no column named {given!r}; the header has {', '.join(names)}")
+    raise UsageError(f"{path}: no {what} column in the header ({', '.join(names)}); name it with --{what}-column")
+
+
+def _is_named(name: str, known: set[str], what: str) -> bool:
+    """'t' is time and 'T' temperature; other names are matched without case."""
+    if name in ("t", "T"):
+        return (name == "t") == (what == "time")
+    low = name.lower()
+    return low in known or (what != "time" and low.startswith(what))
+
+
+def _first_field(rows: list[str], index: int, delimiter: str) -> str | None:
+    for row in rows[:10]:
+        fields = next(csv.reader([row], delimiter=delimiter), [])
+        if len(fields) > index and fields[index].strip():
+            return fields[index].strip()
+    return None
+
+
+def _looks_iso(text: str) -> bool:
+    return bool(re.match(r"^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}", text))
+
+
+def _iso_seconds(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """ISO 8601 texts -> seconds since the epoch, and which ones could be read."""
+    stripped = np.char.strip(values)
+    try:
+        stamps = np.char.rstrip(stripped, "Z").astype("datetime64[us]")
+        return stamps.astype(np.int64) * 1e-6, np.ones(len(values), dtype=bool)
+    except ValueError:
+        pass
+    seconds = np.full(len(values), math.nan)
+    for i, text in enumerate(stripped.tolist()):
+        try:
+            moment = datetime.fromisoformat(text)
+        except ValueError:
+            continue
+        seconds[i] = (moment if moment.tzinfo else moment.replace(tzinfo=UTC)).timestamp()
+    return seconds, ~np.isnan(seconds)
+
+
+def _parse_rows(rows, numbers, names, numeric: dict, text: dict, delimiter: str, bad: list):
+    """Float columns `numeric` and string columns `text` of every readable row.
+
+    Returns (floats [n_good, k], strings [n_good, m], good mask over `rows`); bad rows are
+    appended to `bad` as (line number, reason).
+    """
+    good = np.ones(len(rows), dtype=bool)
+    floats = _columns(rows, list(numeric.values()), float, delimiter, good, numbers, names, bad)
+    if text:
+        kept = np.flatnonzero(good)
+        subset = _pick(rows, kept)
+        ok = np.ones(len(subset), dtype=bool)
+        strings = _columns(subset, list(text.values()), str, delimiter, ok, numbers[kept], names, bad)
+        if not ok.all():
+            good[kept[~ok]] = False
+            floats = floats[ok]
+    else:
+        strings = np.empty((len(floats), 0), dtype=str)
+    return floats, strings, good
+
+
+def _columns(rows, usecols, dtype, delimiter, good, numbers, names, bad) -> np.ndarray:
+    """Parse `rows` block by block, halving failed blocks; clears `good` for the bad rows."""
+    pieces: list[np.ndarray] = []
+
+    def load(a: int, b: int) -> None:
+        try:
+            block = np.loadtxt(rows[a:b], delimiter=delimiter, quotechar='"', usecols=usecols, dtype=dtype, ndmin=2, comments=None)
+            if len(block) == b - a:
+                pieces.append(block)
+                return
+            failure = None
+        except ValueError as exc:
+            failure = exc
+        if b - a == 1:
+            good[a] = False
+            if failure is not None or rows[a].strip():
+                bad.append((int(numbers[a]), _explain(rows[a], usecols, names, delimiter, dtype)))
+            return
+        middle = (a + b) // 2
+        load(a, middle)
+        load(middle, b)
+
+    for start in range(0, len(rows), BLOCK):
+        load(start, min(start + BLOCK, len(rows)))
+    width = len(usecols)
+    if not pieces:
+        return np.empty((0, width), dtype=float if dtype is float else str)
+    return np.concatenate(pieces) if len(pieces) > 1 else pieces[0]
+
+
+def _explain(row: str, usecols, names, delimiter, dtype) -> str:
+    """Why one row could not be read, for people."""
+    try:
+        fields = next(csv.reader([row], delimiter=delimiter, strict=True), [])
+    except csv.Error as exc:
+        return f"unreadable row: {exc}"
+    if len(fields) < len(names):
+        return f"truncated or garbled: {len(fields)} of {len(names)} fields"
+    if dtype is float:
+        for i in usecols:
+            try:
+                float(fields[i])
+            except ValueError:
+                shown = fields[i] if len(fields[i]) <= 40 else fields[i][:40] + "..."
+                return f"{names[i].strip()} {shown!r} is not a number"
+    return f"garbled row ({len(fields)} fields)"
