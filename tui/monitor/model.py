@@ -48,6 +48,8 @@ class Event:
     value: float = float("nan")
     limit: float = float("nan")
     message: str = ""
+    in_flood: bool = False
+    """Raised during an alarm flood: logged like any other, summarised for people by the "flood" events."""
 
     def to_json(self) -> dict:
         return asdict(self)

@@ -1,0 +1,42 @@
+"""Classification stage: thermo's phase and margins for the samples that may be classified.
+
+A sample whose quality forbids classification (NAMUR NE 107 failure or function check), or
+whose values are missing, gets the label `unclassified` and NaN margins: it is recorded, never
+judged as if it were good. The gauge's standard uncertainties go with every state, so a state
+within their reach of a curve is classified as on it.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+import thermo
+from tui.monitor.config import MonitorConfig
+from tui.monitor.frame import CLASSIFIABLE
+from tui.monitor.model import MARGINS, UNCLASSIFIED
+
+_FIELDS = ("dT_saturation", "dp_saturation", "dT_solid", "critical_distance")  # thermo's names of MARGINS
+
+
+class Classifier:
+    """Phase labels and MARGINS of arrays of states of one fluid."""
+
+    def __init__(self, config: MonitorConfig):
+        self.fluid = thermo.fluid(config.fluid)
+        self.u_T = config.u_temperature_K
+        self.u_p, self.u_p_fraction = config.u_pressure_Pa, config.u_pressure_fraction
+
+    def __call__(self, pressure_Pa: np.ndarray, temperature_K: np.ndarray, quality: np.ndarray):
+        """(valid, labels, margins): which samples were classified, their phase labels (str array,
+        `unclassified` elsewhere) and margins (MARGINS x n, NaN elsewhere)."""
+        valid = CLASSIFIABLE[quality] & np.isfinite(pressure_Pa) & np.isfinite(temperature_K)
+        labels = np.full(pressure_Pa.shape, UNCLASSIFIED, dtype="<U16")
+        margins = np.full((len(MARGINS), pressure_Pa.size), np.nan)
+        chosen = np.flatnonzero(valid)
+        if chosen.size:
+            p, T = pressure_Pa[chosen], temperature_K[chosen]
+            result = self.fluid.classify(T, p, self.u_T, self.u_p + self.u_p_fraction * p)
+            labels[chosen] = result.phase
+            for row, name in enumerate(_FIELDS):
+                margins[row, chosen] = getattr(result, name)
+        return valid, labels, margins

@@ -1,0 +1,75 @@
+"""A chunk of samples as arrays, the form every monitor stage works on, and the integer codes of
+phases and qualities that let those stages compare labels at numpy speed."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from tui.acquire.sample import QUALITY_SEVERITY, Quality
+from tui.monitor.model import UNCLASSIFIED
+
+#: quality code -> Quality (codes are positions in this tuple)
+QUALITIES: tuple[Quality, ...] = QUALITY_SEVERITY
+QUALITY_CODE = {quality: code for code, quality in enumerate(QUALITIES)} | {
+    quality.value: code for code, quality in enumerate(QUALITIES)
+}
+OK_CODE = QUALITY_CODE[Quality.OK]
+CLASSIFIABLE = np.array([quality.classifiable for quality in QUALITIES])
+
+
+class PhaseCodes:
+    """Phase label <-> integer code; labels thermo adds later get the next free codes."""
+
+    KNOWN = (
+        "solid", "liquid", "vapor", "gas", "supercritical", "liquid+vapor", "solid+vapor",
+        "solid+liquid", "triple", "critical", "out-of-range", UNCLASSIFIED,
+    )
+
+    def __init__(self) -> None:
+        self.labels: list[str] = list(self.KNOWN)
+        self._code = {label: code for code, label in enumerate(self.labels)}
+
+    def code(self, label: str) -> int:
+        if label not in self._code:
+            self._code[label] = len(self.labels)
+            self.labels.append(label)
+        return self._code[label]
+
+    def encode(self, labels: np.ndarray) -> np.ndarray:
+        """Array of labels -> int16 codes (one comparison pass per known label)."""
+        labels = np.asarray(labels)
+        codes = np.full(labels.shape, -1, dtype=np.int16)
+        for code, label in enumerate(self.labels):
+            codes[labels == label] = code
+        for label in np.unique(labels[codes < 0]):
+            codes[labels == label] = self.code(str(label))
+        return codes
+
+
+@dataclass(frozen=True, slots=True)
+class Frame:
+    """One chunk of samples after classification and trend; arrays of n samples (margins: rows x n)."""
+
+    t_s: np.ndarray
+    """Time since the start of the run [s]."""
+    t_wall: np.ndarray
+    pressure_Pa: np.ndarray
+    temperature_K: np.ndarray
+    quality: np.ndarray
+    """Quality codes (positions in QUALITIES)."""
+    valid: np.ndarray
+    """Whether each sample was classified (its quality allows it and its values are finite)."""
+    phase: np.ndarray
+    """Phase codes (PhaseCodes)."""
+    margins: np.ndarray
+    """MARGINS rows x samples, NaN where undefined."""
+    rates: np.ndarray
+    """Rates of the margins, same shape [unit/s]."""
+    reasons: tuple[tuple[str, ...], ...] | None = None
+    """Why each sample's quality is not ok (None when not known, as in a log without them)."""
+
+    @property
+    def size(self) -> int:
+        return int(self.t_s.size)
