@@ -253,6 +253,12 @@ def test_sublimation_by_pressure_is_log_spaced(capsys):
     assert float(rows[1][0]) == pytest.approx(-78.5, abs=0.1)  # common practice: dry ice sublimes at -78.5 °C
 
 
+def test_a_range_given_by_its_end_alone_takes_that_ends_unit(capsys):
+    rows = curve_csv(capsys, "CO2", "saturation", "--to", "0 degC", "--points", "2")
+    assert rows[0][0] == "T [°C]"
+    assert [float(row[0]) for row in rows[1:]] == pytest.approx([216.592 - 273.15, 0.0])  # from the triple point
+
+
 def test_default_curve_runs_its_whole_range_as_a_text_table(capsys):
     code, out, _ = rigside(capsys, "curve", "CO2", "melting", "--points", "4")
     assert code == 0
@@ -283,7 +289,9 @@ def test_custom_fluid_saturation_curve_ends_at_its_critical_point(capsys):
         (["CO2", "melting", "--from", "-60 degC"], "the melting curve runs from -56.558 °C"),
         (["CO2", "sublimation", "--from", "1 mbar", "--to", "1 bar"], "the sublimation curve runs from"),
         (["CO2", "saturation", "--from", "-50 degC", "--to", "10 bar"], "both be temperatures or both be pressures"),
-        (["CO2", "saturation", "--from", "twenty"], "cannot read 'twenty' as a temperature or a pressure"),
+        (["CO2", "saturation", "--from", "twenty"], "cannot read a temperature or pressure in 'twenty'"),
+        (["CO2", "saturation", "--from", "20 degrees"], "unknown unit 'degrees'"),
+        (["CO2", "saturation", "--from", "-300 degC"], "below absolute zero"),
         (["CO2", "saturation", "--points", "1"], "--points must be between 2"),
         (["CO2", "saturation", "--pressure-unit", "K"], "unknown pressure unit"),
         (["--custom", "Tc=425.1 K, pc=37.96 bar, omega=0.2, M=58.12 g/mol", "melting"], "no melting curve is known"),

@@ -27,6 +27,7 @@ from thermo.units import (
     parse_pressure_difference,
     parse_temperature,
     parse_temperature_difference,
+    split_quantity,
 )
 
 # hand calculation: 1 lbf/in² = 0.45359237 kg × 9.80665 m/s² / (0.0254 m)²
@@ -226,3 +227,14 @@ def test_format_helpers_name_the_unit_and_scale():
     assert format_temperature(292.15, degc) == "19.00 °C"
     assert format_temperature_difference(-2.27, degc) == "-2.27 K"
     assert format_temperature_difference(2.5, TemperatureUnit.from_text("F")) == "4.50 °F"
+
+
+def test_split_quantity_tells_temperatures_from_pressures_by_unit():
+    value, unit = split_quantity("-20 degC")
+    assert value == -20.0 and isinstance(unit, TemperatureUnit)
+    value, unit = split_quantity("10 bar(g)", atmosphere=95_000.0)
+    assert isinstance(unit, PressureUnit) and unit.to_si(value) == pytest.approx(10e5 + 95_000.0)
+    with pytest.raises(UnitError, match="unknown unit 'degrees'.*temperature.*pressure"):
+        split_quantity("20 degrees")
+    with pytest.raises(UnitError, match="below absolute zero"):
+        split_quantity("-300 degC")

@@ -96,6 +96,25 @@ def _split(text: str, what: str, accepted: str) -> tuple[float, str]:
     return float(number), unit
 
 
+def _pressure_symbol(text: str) -> tuple[str, bool] | None:
+    """('bar', True) for 'bar(g)', ('psi', False) for 'psia'; None for no pressure unit."""
+    key = re.sub(r"\s+", "", str(text)).lower()
+    if key in _PRESSURE_LOOKUP:
+        return _PRESSURE_LOOKUP[key], False
+    for suffixes, gauge in ((_GAUGE_SUFFIXES, True), (_ABSOLUTE_SUFFIXES, False)):
+        for suffix in suffixes:
+            base = key.removesuffix(suffix)
+            if base != key and base in _PRESSURE_LOOKUP:
+                return _PRESSURE_LOOKUP[base], gauge
+    return None
+
+
+def _temperature_symbol(text: str) -> str | None:
+    """'°C' for 'degC', 'C', '°C' or '℃'; None for no temperature unit."""
+    key = re.sub(r"\s+", "", str(text)).lower().replace("\u2103", "°c").replace("\u2109", "°f")
+    return _TEMPERATURE_LOOKUP.get(key)
+
+
 @dataclass(frozen=True, slots=True)
 class PressureUnit:
     """A pressure unit on the absolute or the gauge scale, converting arrays both ways."""
@@ -111,16 +130,11 @@ class PressureUnit:
     @classmethod
     def from_text(cls, text: str, atmosphere: float = STANDARD_ATMOSPHERE) -> PressureUnit:
         """Read a unit such as 'bar', 'barg', 'bar(g)', 'psia', 'kPa (g)', 'MPa abs'."""
-        key = re.sub(r"\s+", "", str(text)).lower()
-        if key in _PRESSURE_LOOKUP:
-            return cls(_PRESSURE_LOOKUP[key], _PRESSURE_FACTORS[_PRESSURE_LOOKUP[key]], False, atmosphere)
-        for suffixes, gauge in ((_GAUGE_SUFFIXES, True), (_ABSOLUTE_SUFFIXES, False)):
-            for suffix in suffixes:
-                base = key.removesuffix(suffix)
-                if base != key and base in _PRESSURE_LOOKUP:
-                    symbol = _PRESSURE_LOOKUP[base]
-                    return cls(symbol, _PRESSURE_FACTORS[symbol], gauge, atmosphere)
-        raise UnitError(f"unknown pressure unit {str(text)!r}; {_PRESSURE_HELP}")
+        found = _pressure_symbol(text)
+        if found is None:
+            raise UnitError(f"unknown pressure unit {str(text)!r}; {_PRESSURE_HELP}")
+        symbol, gauge = found
+        return cls(symbol, _PRESSURE_FACTORS[symbol], gauge, atmosphere)
 
     @property
     def label(self) -> str:
@@ -160,10 +174,9 @@ class TemperatureUnit:
     @classmethod
     def from_text(cls, text: str) -> TemperatureUnit:
         """Read a unit such as 'K', 'degC', '°C', 'C', 'degF', '°F', 'R'."""
-        key = re.sub(r"\s+", "", str(text)).lower().replace("\u2103", "°c").replace("\u2109", "°f")
-        if key not in _TEMPERATURE_LOOKUP:
+        symbol = _temperature_symbol(text)
+        if symbol is None:
             raise UnitError(f"unknown temperature unit {str(text)!r}; {_TEMPERATURE_HELP}")
-        symbol = _TEMPERATURE_LOOKUP[key]
         return cls(symbol, *_TEMPERATURE_SCALES[symbol])
 
     @property
@@ -252,6 +265,18 @@ def parse_temperature_difference(text: str) -> float:
     """'0.1 K' -> temperature difference [K]; '0.18 degF' -> 0.1 K; '0.1 degC' -> 0.1 K."""
     value, unit_text = _split(text, "temperature difference", _TEMPERATURE_HELP)
     return float(TemperatureUnit.from_text(unit_text).difference_to_si(value))
+
+
+def split_quantity(text: str, atmosphere: float = STANDARD_ATMOSPHERE) -> tuple[float, PressureUnit | TemperatureUnit]:
+    """A temperature or a pressure, told apart by its unit: '-20 degC' or '10 bar(g)' ->
+    (value, unit), with the checks of `split_temperature` and `split_pressure`."""
+    accepted = f"give a temperature ({_TEMPERATURE_HELP}) or a pressure ({_PRESSURE_HELP})"
+    _, unit_text = _split(text, "temperature or pressure", accepted)
+    if _temperature_symbol(unit_text) is not None:
+        return split_temperature(text)
+    if _pressure_symbol(unit_text) is not None:
+        return split_pressure(text, atmosphere)
+    raise UnitError(f"unknown unit {unit_text!r} in {str(text).strip()!r}; {accepted}")
 
 
 def parse_molar_mass(text: str) -> float:

@@ -19,13 +19,11 @@ from thermo.units import (
     STANDARD_ATMOSPHERE,
     PressureUnit,
     TemperatureUnit,
-    UnitError,
     format_number,
     format_pressure,
     format_temperature,
     parse_atmosphere,
-    split_pressure,
-    split_temperature,
+    split_quantity,
 )
 from tui.cli import SAFETY_NOTE
 from tui.commands.fluids import add_fluid_arguments, display_name, resolve_fluid
@@ -119,15 +117,14 @@ def _span(args, curve: Boundary, atmosphere: float):
         by = "temperature" if curve.by_temperature else "pressure"  # ices of water, vertical fallbacks
         ends = (curve.p_min, curve.p_max) if by == "pressure" else (curve.T_min, curve.T_max)
     else:
-        (by_start, start, unit), (by_stop, stop, _) = (
+        (by_start, start, unit_start), (by_stop, stop, unit_stop) = (
             _point(text, atmosphere) if text is not None else (None, None, None) for text in (args.start, args.stop))
-        by = by_start or by_stop
+        by, unit = by_start or by_stop, unit_start or unit_stop
         if by_start and by_stop and by_start != by_stop:
             raise UsageError("--from and --to must both be temperatures or both be pressures")
         low, high = (curve.T_min, curve.T_max) if by == "temperature" else (curve.p_min, curve.p_max)
         ends = (low if start is None else start, high if stop is None else stop)
-        if unit is not None:
-            T_unit, p_unit = (unit, p_unit) if by == "temperature" else (T_unit, unit)
+        T_unit, p_unit = (unit, p_unit) if by == "temperature" else (T_unit, unit)
         _check_inside(ends, low, high, by, curve, p_unit, T_unit)
     if args.pressure_unit:
         p_unit = PressureUnit.from_text(args.pressure_unit, atmosphere)
@@ -138,16 +135,8 @@ def _span(args, curve: Boundary, atmosphere: float):
 
 def _point(text: str, atmosphere: float):
     """("temperature" | "pressure", value in SI, its unit) of a --from/--to value."""
-    try:
-        value, unit = split_temperature(text)
-        return "temperature", float(unit.to_si(value)), unit
-    except UnitError:
-        pass
-    try:
-        value, unit = split_pressure(text, atmosphere)
-    except UnitError:
-        raise UsageError(f"cannot read {text!r} as a temperature or a pressure, e.g. '-20 degC' or '10 bar'") from None
-    return "pressure", float(unit.to_si(value)), unit
+    value, unit = split_quantity(text, atmosphere)
+    return ("temperature" if isinstance(unit, TemperatureUnit) else "pressure"), float(unit.to_si(value)), unit
 
 
 def _check_inside(ends, low: float, high: float, by: str, curve: Boundary, p_unit, T_unit) -> None:
