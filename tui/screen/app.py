@@ -6,8 +6,6 @@ latest view, owns the display units and the dialogs, and pushes the monitor scre
 
 from __future__ import annotations
 
-import time
-
 from textual import work
 from textual.app import App
 from textual.worker import get_current_worker
@@ -46,7 +44,7 @@ class RigsideApp(App):
 
     def on_mount(self) -> None:
         self.push_screen(MonitorScreen())
-        self.compute_curves(self.session.fluid_name)
+        self.compute_curves(self.session.fluid.key)
         self.run_pipeline()
 
     # ------------------------------------------------------------ workers
@@ -90,13 +88,13 @@ class RigsideApp(App):
         self.push_screen(ConfirmQuit(str(recording)), answered)
 
     def action_note(self) -> None:
-        marked_at = time.time()
+        moment = self.session.mark()
 
         def typed(text: str | None) -> None:
             if text is not None:
-                self.session.note(text, marked_at)
+                self.session.note(text, moment)
 
-        self.push_screen(NoteScreen(marked_at), typed)
+        self.push_screen(NoteScreen(moment[1]), typed)
 
     def action_next_pressure_unit(self) -> None:
         self.pressure_unit = _next_unit(PRESSURE_CYCLE, self.pressure_unit, self.pressure_unit.atmosphere)
@@ -105,13 +103,14 @@ class RigsideApp(App):
         self.temperature_unit = _next_unit(TEMPERATURE_CYCLE, self.temperature_unit)
 
     def action_pick_fluid(self) -> None:
-        def picked(name: str | None) -> None:
-            if name and name != self.session.fluid_name:
-                self.session.switch_fluid(name)
+        def picked(key: str | None) -> None:
+            if key and key != self.session.fluid.key:
+                self.session.switch_fluid(key)
                 self.curves = None
-                self.compute_curves(name)
+                self.compute_curves(key)
 
-        self.push_screen(FluidPicker(thermo.fluids(), self.session.fluid_name), picked)
+        choices = [(key, thermo.fluid(key).name) for key in thermo.fluids()]
+        self.push_screen(FluidPicker(choices, self.session.fluid.key), picked)
 
 
 def _next_unit(cycle: tuple[str, ...], current, *atmosphere):

@@ -49,7 +49,7 @@ def size(n_bytes: int) -> str:
 def trend(rate: float, value: float) -> str:
     """Which way a margin moves, as a symbol and a word: closing means moving towards zero."""
     if rate is None or not math.isfinite(rate) or value is None or not math.isfinite(value):
-        return "· ?"
+        return "· no rate"
     if rate == 0 or abs(rate) < 1e-12 * max(abs(value), 1.0):
         return "→ steady"
     closing = (rate < 0) == (value > 0)

@@ -189,14 +189,14 @@ def _pt_content(picture: _Picture, curves: FluidCurves, state: DiagramState) -> 
     picture.line(melt.T, _log10(melt.p), SOLID)
     picture.line(sat.T, _log10(sat.p), SATURATION)
     _trail(picture, np.asarray(state.trail_T, float), _log10(state.trail_p))
-    free = picture.canvas.cells()[1] == 0
     log_pc, log_pt = math.log10(pc), math.log10(curves.p_triple)
+    picture.mark(Tc, log_pc, CRITICAL_GLYPH, "point")
+    picture.mark(curves.T_triple, log_pt, TRIPLE_GLYPH, "point")
+    free = picture.canvas.cells()[1] == 0
     picture.word((curves.T_triple + Tc) / 2, (log_pt + 2 * log_pc) / 3 + 0.35, "liquid", free)
     picture.word((curves.T_triple + Tc) / 2, (log_pt + log_pc) / 2 - 0.6, "vapor", free)
     picture.word(Tc * 1.12, log_pc + 0.6, "supercritical", free)
     picture.word(curves.T_triple * 0.86, log_pt + 0.5, "solid", free)
-    picture.mark(Tc, log_pc, CRITICAL_GLYPH, "point")
-    picture.mark(curves.T_triple, log_pt, TRIPLE_GLYPH, "point")
     if _has_now(state):
         picture.mark(state.T, math.log10(state.p), NOW_GLYPH, "now-alarm" if state.alarm else "now")
 
@@ -211,11 +211,10 @@ def _pv_content(picture: _Picture, curves: FluidCurves, state: DiagramState) -> 
         if math.isfinite(iso.p_saturation):
             y = math.log10(iso.p_saturation)
             picture.line([math.log10(iso.v_liquid), math.log10(iso.v_vapor)], [y, y], ISOTHERM)
-    free = picture.canvas.cells()[1] == 0
     log_pc = math.log10(curves.p_critical)
     v_c = math.log10(float(np.nanmax(curves.dome_v_liquid)))
-    picture.word(v_c, log_pc - 0.5, "two-phase", free)
     picture.mark(v_c, log_pc, CRITICAL_GLYPH, "point")
+    picture.word(v_c, log_pc - 0.5, "two-phase", picture.canvas.cells()[1] == 0)
     if _has_now(state) and math.isfinite(state.v) and state.v > 0:
         picture.mark(math.log10(state.v), math.log10(state.p), NOW_GLYPH, "now-alarm" if state.alarm else "now")
 

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import tempfile
+import time
 from pathlib import Path
 
 from tui.screen.app import make_app
@@ -14,13 +15,16 @@ DEMO_LOG_DIR = Path(tempfile.gettempdir()) / "rigside-demo"
 CLOSE_WAIT_S = 2.0
 
 
-def run_watch(source, config, *, recorder=None, label: str = "") -> int:
+def run_watch(source, config, *, recorder=None, label: str = "", make_monitor=None) -> int:
     """Show the screen over `source` (a tui.acquire Source) with the monitor built from
-    `config` (a MonitorConfig); `recorder` (a RunRecorder) gets every reading first.
+    `config` (a MonitorConfig) by `make_monitor(config)` (default: `Monitor(config)`; pass one
+    that adds a validator for live gauges); `recorder` (a RunRecorder) gets every batch first.
     Closes the source and the recorder before returning; the exit status is 0."""
     from tui.monitor.pipeline import Monitor
 
-    session = Session(source, config, make_monitor=Monitor, recorder=recorder, label=label)
+    paced = hasattr(source, "pacer")  # replays and the virtual gauge keep their own time
+    session = Session(source, config, make_monitor=make_monitor or Monitor, recorder=recorder, label=label,
+                      stale_clock=None if paced else time.monotonic)
     app = make_app(session, pressure_unit=config.pressure_unit.label, temperature_unit=config.temperature_unit.label)
     try:
         app.run()

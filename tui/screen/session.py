@@ -1,9 +1,10 @@
-"""One run as the screen drives it: source -> monitor -> recorder -> LiveFeed, and the operator's
-commands (acknowledge, shelve, note, fluid, replay) applied between batches. No Textual here.
+"""One run as the screen drives it, and the operator's commands. No Textual here.
 
-`run()` is the body of the app's thread worker; every other method is called from the screen's
-thread and takes the same lock, held only while one batch is processed, so a key never waits
-for more than one batch.
+`run()` is the body of the app's thread worker: it runs the monitor's own live loop
+(`tui.monitor.pipeline.run_live`: source -> monitor -> recorder first, then the screen's sink).
+The screen's sink folds each batch into a `LiveFeed` and hands the new view to `publish`.
+Every other method is called from the screen's thread: the monitor is thread-safe, and the
+feed is guarded by a lock held only while one batch is folded in, so a key never waits long.
 """
 
 from __future__ import annotations
@@ -14,8 +15,8 @@ import time
 from collections.abc import Callable
 
 import thermo
-from tui.acquire.sample import Sample, SourceStatus
 from tui.monitor.model import Event
+from tui.monitor.pipeline import Sink, run_live
 from tui.screen.curves import isotherm
 from tui.screen.live import LiveFeed, LiveView, Recording, ReplayPosition
 
@@ -27,12 +28,15 @@ ISOTHERM_HZ = 1.0
 ISOTHERM_STEP_K = 0.05
 #: the isotherm spans the dome's pressures with this much room either side
 ISOTHERM_PRESSURE_ROOM = 3.0
+#: the recording's size is looked up at most this often [1/s]
+RECORDING_SIZE_HZ = 1.0
 #: properties shown at the live state
 SHOWN_PROPERTIES = ("density", "molar_volume", "Z", "alpha_p", "kappa_T", "cp", "speed_of_sound")
 
 
 class ReplayControl:
-    """The replay keys, over a source that can pause, resume, change speed, step and seek."""
+    """The replay keys, over a source that can pause, resume, change speed, step and seek
+    (a replay or the virtual gauge: they pace themselves with a `tui.acquire.pacer.Pacer`)."""
 
     SPEEDS = (0.25, 0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0)
 
@@ -42,14 +46,14 @@ class ReplayControl:
     @property
     def position(self) -> ReplayPosition:
         s = self._source
-        return ReplayPosition(s.position_s, s.duration_s, s.speed, s.paused)
+        return ReplayPosition(s.position, s.duration, s.pacer.speed, s.paused)
 
     def toggle_pause(self) -> None:
         (self._source.resume if self._source.paused else self._source.pause)()
 
     def scale_speed(self, factor: float) -> None:
-        """Next speed up (factor > 1) or down the SPEEDS ladder."""
-        current = self._source.speed
+        """The next speed up (factor > 1) or down the SPEEDS ladder."""
+        current = self._source.pacer.speed
         ladder = [s for s in self.SPEEDS if (s > current if factor > 1 else s < current)]
         if ladder:
             self._source.set_speed(ladder[0] if factor > 1 else ladder[-1])
@@ -59,15 +63,57 @@ class ReplayControl:
 
     def seek_by(self, seconds: float) -> None:
         s = self._source
-        s.seek(min(max(s.position_s + seconds, 0.0), s.duration_s))
+        s.seek(max(s.position + seconds, 0.0))
+
+
+class RecorderSink(Sink):
+    """The run log, first of the sinks: what was seen was saved."""
+
+    def __init__(self, recorder) -> None:
+        self.recorder = recorder
+
+    def write(self, readings, events) -> None:
+        self.recorder.write_many(readings)
+        for event in events:
+            self.recorder.write_event(event)
+
+    def status(self, report) -> None:
+        self.recorder.write_status(report)
+
+
+class _SwitchableMonitor:
+    """Stands for the session's current monitor in the live loop, so the fluid can change while it runs."""
+
+    def __init__(self, session: Session) -> None:
+        self._session = session
+
+    def process(self, samples, *, now=None):
+        return self._session.monitor.process(samples, now=now)
+
+
+class _ScreenSink(Sink):
+    def __init__(self, session: Session) -> None:
+        self._session = session
+
+    def write(self, readings, events) -> None:
+        self._session._fold(readings, events)
+
+    def status(self, report) -> None:
+        self._session._fold_status(report)
 
 
 class Session:
     """Owns the source, the monitor and the recorder of one screen run."""
 
-    def __init__(self, source, config, *, make_monitor: Callable, recorder=None, label: str = "") -> None:
+    def __init__(self, source, config, *, make_monitor: Callable, recorder=None, label: str = "",
+                 clock: Callable[[], float] = time.monotonic, stale_clock: Callable[[], float] | None = None) -> None:
+        """`make_monitor(config)` builds a monitor (again on a fluid switch); `clock` tells the
+        samples' age (tests freeze it); `stale_clock` is "now" on the samples' clock for the
+        monitor's stale check (None for replays and the virtual gauge, which keep their own time)."""
         self.source = source
         self.config = config
+        self.clock = clock
+        self._stale_clock = stale_clock
         self._make_monitor = make_monitor
         self.monitor = make_monitor(config)
         self.recorder = recorder
@@ -80,9 +126,8 @@ class Session:
         self._finished = threading.Event()
         self._finished.set()  # until run() starts
         self._publish: Callable[[LiveView], object] = lambda view: None
-        self._started_wall = time.time()
-        self._properties_at = -math.inf
-        self._isotherm_at = -math.inf
+        self._next = {"properties": -math.inf, "isotherm": -math.inf, "size": -math.inf}
+        self._recording_bytes = 0
 
     @property
     def fluid_name(self) -> str:
@@ -90,20 +135,16 @@ class Session:
 
     @property
     def recording_path(self):
-        return getattr(self.recorder, "path", None)
+        return None if self.recorder is None else self.recorder.path
 
     # ------------------------------------------------------------ the worker's loop
     def run(self, publish: Callable[[LiveView], object], cancelled: Callable[[], bool]) -> None:
-        """Process the source until it ends or `stop()`; `publish` gets every new view."""
+        """Run the live loop until the source ends or `stop()`; `publish` gets every new view."""
         self._publish = publish
         self._finished.clear()
+        sinks = ([RecorderSink(self.recorder)] if self.recorder is not None else []) + [_ScreenSink(self)]
         try:
-            for batch in self.source.batches(self._stop):
-                if cancelled():
-                    break
-                with self._lock:
-                    view = self._process(batch)
-                publish(view)
+            run_live(self.source, _SwitchableMonitor(self), sinks, self._stop, clock=self._stale_clock)
         finally:
             self._stop.set()
             self._finished.set()
@@ -120,26 +161,38 @@ class Session:
         if self.recorder is not None:
             self.recorder.close()
 
-    def _process(self, batch) -> LiveView:
-        samples = [item for item in batch if isinstance(item, Sample)]
-        for item in batch:
-            if isinstance(item, SourceStatus):
-                self.feed.status(item)
-        readings, events = self.monitor.process(samples) if samples else ((), ())
-        if self.recorder is not None:
-            self.recorder.write(readings, events)
-        self.feed.add(readings, events)
-        self._derive()
-        return self.feed.update(**self._counters())
+    def _fold(self, readings, events) -> None:
+        with self._lock:
+            self.feed.add(readings, events, now=self.clock())
+            self._derive()
+            view = self.feed.update(**self._counters())
+        self._publish(view)
+
+    def _fold_status(self, report) -> None:
+        with self._lock:
+            view = self.feed.status(report)
+        self._publish(view)
+
+    def _due(self, what: str, hz: float) -> bool:
+        now = time.monotonic()
+        if now < self._next[what]:
+            return False
+        self._next[what] = now + 1.0 / hz
+        return True
 
     def _counters(self) -> dict:
         counters = self.source.counters
-        changes = dict(dropped=counters.dropped, malformed=counters.malformed, alarms=alarm_rows(self.monitor))
+        changes = dict(dropped=counters.dropped, malformed=counters.malformed, alarms=self._alarms())
         if self.recorder is not None:
-            changes["recording"] = Recording(str(self.recorder.path), self.recorder.bytes_written)
+            if self._due("size", RECORDING_SIZE_HZ):
+                self._recording_bytes = sum(path.stat().st_size for path in self.recorder.paths)
+            changes["recording"] = Recording(str(self.recorder.path), self._recording_bytes)
         if self.replay is not None:
             changes["replay"] = self.replay.position
         return changes
+
+    def _alarms(self) -> tuple:
+        return tuple(status for status in self.monitor.alarm_states() if status.state != "normal")
 
     def _derive(self) -> None:
         """Properties and the isotherm at the live state, at their own modest rates."""
@@ -149,53 +202,52 @@ class Session:
         T, p = reading.sample.temperature_K, reading.sample.pressure_Pa
         if not (math.isfinite(T) and math.isfinite(p)):
             return
-        now = time.monotonic()
-        if now - self._properties_at >= 1.0 / PROPERTY_HZ:
-            self._properties_at = now
+        if self._due("properties", PROPERTY_HZ):
             values = self.fluid.properties(T, p)
             self.feed.update(properties={key: float(values[key]) for key in SHOWN_PROPERTIES})
         last = self.feed.view.isotherm
-        if now - self._isotherm_at >= 1.0 / ISOTHERM_HZ and (last is None or abs(last.T - T) > ISOTHERM_STEP_K):
-            self._isotherm_at = now
+        if (last is None or abs(last.T - T) > ISOTHERM_STEP_K) and self._due("isotherm", ISOTHERM_HZ):
             critical, triple = self.fluid.critical, self.fluid.triple
             p_range = (triple.p / ISOTHERM_PRESSURE_ROOM, critical.p * ISOTHERM_PRESSURE_ROOM)
             self.feed.update(isotherm=isotherm(self.fluid, T, p_range))
 
     # ------------------------------------------------------------ operator commands (screen thread)
-    def _command(self, events) -> None:
-        """Record the events a command produced and show them at once."""
-        if self.recorder is not None:
-            self.recorder.write((), events)
-        view = self.feed.add((), events)
-        self._publish(self.feed.update(alarms=alarm_rows(self.monitor)) if view else view)
-
     def acknowledge(self, condition: str) -> None:
-        with self._lock:
-            self._command(self.monitor.acknowledge(condition))
+        """The ack events reach the run log and the screen with the monitor's next batch."""
+        self.monitor.acknowledge(condition)
 
     def shelve(self, condition: str) -> None:
-        with self._lock:
-            self._command(self.monitor.shelve(condition))
+        self.monitor.shelve(condition)
 
-    def note(self, text: str, marked_at: float) -> None:
-        """An operator note at the moment the mark key was pressed; it goes into the run log."""
-        event = Event(t_s=marked_at - self._started_wall, t_wall=marked_at, kind="note", condition="operator",
-                      message=text)
+    def mark(self) -> tuple[float, float]:
+        """The moment of a note: (run time t_s [s], wall time [s since the epoch])."""
+        reading, t0 = self.feed.view.reading, self.monitor.t0
+        t_s = reading.sample.t_monotonic - t0 if reading is not None and t0 is not None else 0.0
+        return t_s, time.time()
+
+    def note(self, text: str, moment: tuple[float, float]) -> None:
+        """An operator note at `moment` (from `mark`): into the run log, and onto the screen."""
+        t_s, t_wall = moment
+        if self.recorder is not None:
+            self.recorder.write_note(text, t_s)
+        event = Event(t_s=t_s, t_wall=t_wall, kind="note", condition="operator", message=text)
         with self._lock:
-            if self.recorder is not None:
-                self.recorder.write_note(text, marked_at)
-            self._publish(self.feed.add((), (event,)))
+            view = self.feed.add((), (event,))
+        self._publish(view)
 
     def switch_fluid(self, name: str) -> None:
-        """Classify from the next batch on as `name`, with that fluid's configured limits."""
-        config = self.config.for_fluid(name)
-        fluid = thermo.fluid(name)
+        """Classify as `name` from the next batch on, with the limits configured for that fluid."""
+        from tui.monitor.config import load_config
+
+        origin = None if self.config.origin == "defaults" else self.config.origin
+        config = load_config(origin, fluid=name)
+        fluid, monitor = thermo.fluid(name), self._make_monitor(config)
         with self._lock:
-            self.config, self.fluid = config, fluid
-            self.monitor = self._make_monitor(config)
-            self._isotherm_at = self._properties_at = -math.inf
-            self._publish(self.feed.update(fluid=fluid.name, limits=margin_limits(config), isotherm=None,
-                                           properties={}))
+            self.config, self.fluid, self.monitor = config, fluid, monitor
+            self._next.update(properties=-math.inf, isotherm=-math.inf)
+            view = self.feed.update(fluid=fluid.name, limits=margin_limits(config), isotherm=None, properties={},
+                                    alarms=())
+        self._publish(view)
 
 
 def margin_limits(config) -> dict[str, float]:
@@ -208,7 +260,3 @@ def margin_limits(config) -> dict[str, float]:
         usable = settings is not None and settings.enabled and not settings.relative
         limits[margin] = settings.limit if usable else math.nan
     return limits
-
-
-def alarm_rows(monitor) -> tuple:
-    raise NotImplementedError

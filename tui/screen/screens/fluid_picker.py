@@ -12,13 +12,14 @@ from textual.widgets.option_list import Option
 
 
 class FluidPicker(ModalScreen[str | None]):
-    """Returns the chosen fluid's name, or None on escape."""
+    """Returns the chosen fluid's key, or None on escape."""
 
     BINDINGS = [Binding("escape", "cancel", "cancel")]
 
-    def __init__(self, names: list[str], current: str) -> None:
+    def __init__(self, fluids: list[tuple[str, str]], current: str) -> None:
+        """`fluids` are (key, name) pairs; `current` is the key of the fluid in use."""
         super().__init__()
-        self._names = names
+        self._fluids = fluids
         self._current = current
 
     def compose(self) -> ComposeResult:
@@ -26,9 +27,10 @@ class FluidPicker(ModalScreen[str | None]):
             dialog.border_title = "fluid"
             yield Static("The monitor reclassifies from the next sample on. Enter picks, Esc keeps the current one.",
                          markup=False)
-            options = OptionList(*(Option(name, id=name) for name in self._names), id="fluids")
-            if self._current in self._names:
-                options.highlighted = self._names.index(self._current)
+            options = OptionList(*(Option(f"{key:<8} {name}", id=key) for key, name in self._fluids), id="fluids")
+            keys = [key for key, _ in self._fluids]
+            if self._current in keys:
+                options.highlighted = keys.index(self._current)
             yield options
 
     @on(OptionList.OptionSelected)

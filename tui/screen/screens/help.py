@@ -28,11 +28,11 @@ KEY_NAMES = {
 
 
 def key_lines(bindings: list[Binding]) -> list[str]:
-    """'keys   what they do' for each binding, keys joined by ' or '."""
+    """'keys   what they do' for each binding (its tooltip, else its footer word), keys joined by ' or '."""
     rows = []
     for binding in bindings:
         keys = " or ".join(KEY_NAMES.get(k.strip(), k.strip()) for k in binding.key.split(","))
-        rows.append((keys, binding.description))
+        rows.append((keys, binding.tooltip or binding.description))
     width = max(len(keys) for keys, _ in rows)
     return [f"{keys.ljust(width)}  {what}" for keys, what in rows]
 
@@ -44,13 +44,13 @@ class HelpScreen(ModalScreen[None]):
 
     def __init__(self, bindings: list[Binding]) -> None:
         super().__init__()
-        self._bindings = bindings
+        self._key_bindings = bindings
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog") as dialog:
             dialog.border_title = "keys"
             with VerticalScroll(id="help-keys"):
-                yield Static("\n".join(key_lines(self._bindings)), markup=False)
+                yield Static("\n".join(key_lines(self._key_bindings)), markup=False)
             yield Static(
                 "Replay keys work when the source is a replay or the demo. "
                 "Quit asks first while a run is being recorded. Esc closes this.",

@@ -5,7 +5,6 @@ at a steady rate and hands every operator action to the session."""
 from __future__ import annotations
 
 import math
-import time
 
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -41,27 +40,27 @@ class MonitorScreen(Screen):
     VERTICAL_BREAKPOINTS = [(0, "-short"), (36, "-tall")]
 
     BINDINGS = [
-        Binding("question_mark,f1", "app.help", "help"),
-        Binding("q", "app.quit", "quit"),
-        Binding("a", "acknowledge", "ack"),
-        Binding("A", "acknowledge_all", "ack all", show=False),
-        Binding("s", "shelve", "shelve"),
-        Binding("up,k", "select(-1)", "previous alarm", show=False),
-        Binding("down,j", "select(1)", "next alarm", show=False),
-        Binding("m", "app.note", "note"),
-        Binding("d", "toggle_view", "p–T/p–v"),
-        Binding("z", "toggle_zoom", "zoom"),
-        Binding("u", "app.next_pressure_unit", "p unit"),
-        Binding("t", "app.next_temperature_unit", "T unit"),
-        Binding("f", "app.pick_fluid", "fluid"),
-        Binding("space", "pause", "pause"),
-        Binding("plus,equals_sign", "speed(2)", "faster", show=False),
-        Binding("minus", "speed(0.5)", "slower", show=False),
-        Binding("full_stop", "step", "step", show=False),
-        Binding("left", "seek(-10)", "back 10 s", show=False),
-        Binding("right", "seek(10)", "ahead 10 s", show=False),
-        Binding("shift+left", "seek(-60)", "back 1 min", show=False),
-        Binding("shift+right", "seek(60)", "ahead 1 min", show=False),
+        Binding("question_mark,f1", "app.help", "help", tooltip="this list of keys"),
+        Binding("q", "app.quit", "quit", tooltip="quit (asks first while recording)"),
+        Binding("a", "acknowledge", "ack", tooltip="acknowledge the selected alarm"),
+        Binding("A", "acknowledge_all", "ack all", show=False, tooltip="acknowledge every alarm shown"),
+        Binding("s", "shelve", "shelve", tooltip="shelve the selected alarm for the configured time"),
+        Binding("up,k", "select(-1)", "previous alarm", show=False, tooltip="select the alarm above"),
+        Binding("down,j", "select(1)", "next alarm", show=False, tooltip="select the alarm below"),
+        Binding("m", "app.note", "note", tooltip="mark this moment and type a note for the run log"),
+        Binding("d", "toggle_view", "p–T/p–v", tooltip="diagram: pressure–temperature or pressure–volume"),
+        Binding("z", "toggle_zoom", "zoom", tooltip="diagram: zoom between the whole range and near the live state"),
+        Binding("u", "app.next_pressure_unit", "p unit", tooltip="next pressure unit (absolute and gauge)"),
+        Binding("t", "app.next_temperature_unit", "T unit", tooltip="next temperature unit"),
+        Binding("f", "app.pick_fluid", "fluid", tooltip="choose the fluid in the rig"),
+        Binding("space", "pause", "pause", tooltip="replay: pause or resume"),
+        Binding("plus,equals_sign", "speed(2)", "faster", show=False, tooltip="replay: faster"),
+        Binding("minus", "speed(0.5)", "slower", show=False, tooltip="replay: slower"),
+        Binding("full_stop", "step", "step", show=False, tooltip="replay: one sample on (while paused)"),
+        Binding("left", "seek(-10)", "back 10 s", show=False, tooltip="replay: back 10 s"),
+        Binding("right", "seek(10)", "ahead 10 s", show=False, tooltip="replay: ahead 10 s"),
+        Binding("shift+left", "seek(-60)", "back 1 min", show=False, tooltip="replay: back 1 min"),
+        Binding("shift+right", "seek(60)", "ahead 1 min", show=False, tooltip="replay: ahead 1 min"),
     ]
 
     refreshes = 0
@@ -109,7 +108,7 @@ class MonitorScreen(Screen):
         app = self.app
         view: LiveView = app.latest_view
         units = (app.temperature_unit, app.pressure_unit)
-        self.query_one(LiveReadout).show(view, *units, now=time.monotonic())
+        self.query_one(LiveReadout).show(view, *units, now=app.session.clock())
         key = (id(view), units, id(app.curves))
         if key == self._drawn:
             return

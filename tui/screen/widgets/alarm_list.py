@@ -67,8 +67,9 @@ class AlarmList(TextPanel):
             lines.append(
                 Content.assemble(
                     f"{mark} ",
-                    (word.ljust(9), style),
-                    f" {row.priority[:4]:<4} {row.condition}",
+                    (word, style),
+                    " " * (10 - len(word)),
+                    f"{row.priority:<6} {row.condition}",
                     (f"  {row.message}" if row.message else "", "dim"),
                 )
             )

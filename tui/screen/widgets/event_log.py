@@ -19,14 +19,16 @@ SHORT_KINDS = {"phase-change": "phase"}
 
 
 def event_line(event: Event) -> Content:
-    """'12:03:04 alarm  near-solid high  message' — the wall time is local."""
+    """'12:03:04 alarm  solid-approach high  message' — the wall time is local; the condition is
+    left out when it only repeats the kind."""
     stamp = time.strftime("%H:%M:%S", time.localtime(event.t_wall)) if math.isfinite(event.t_wall) else "--:--:--"
+    kind = SHORT_KINDS.get(event.kind, event.kind)
     text = event.message or (f"{format_number(event.value, 4)}" if math.isfinite(event.value) else "")
     return Content.assemble(
         (stamp, "dim"),
         " ",
-        (f"{SHORT_KINDS.get(event.kind, event.kind):<7}", "bold" if event.kind in LOUD_KINDS else ""),
-        f" {event.condition}",
+        (f"{kind:<6}", "bold" if event.kind in LOUD_KINDS else ""),
+        f" {event.condition}" if event.condition not in ("", event.kind, kind) else "",
         (f" {event.priority}" if event.priority else "", ""),
         (f"  {text}" if text else "", "dim"),
     )

@@ -15,8 +15,8 @@ from tui.screen.widgets.text_panel import TextPanel
 FULL_SCALE_LIMITS = 4.0
 #: full scale when no limit is configured, in the margin's SI unit
 DEFAULT_FULL_SCALE = {"dT_saturation_K": 20.0, "dp_saturation_Pa": 10e5, "dT_solid_K": 20.0, "critical_distance": 0.5}
-LABEL_WIDTH = 12
-VALUE_WIDTH = 9
+LABEL_WIDTH = 11
+VALUE_WIDTH = 8
 #: cells kept for the trend and the time to the boundary, so the bars do not jump
 TAIL_WIDTH = 10
 _EIGHTHS = " ▏▎▍▌▋▊▉"
@@ -28,7 +28,7 @@ def margin_label(name: str, value: float) -> str:
     if name == "dT_saturation_K":
         return "sat. margin" if math.isnan(value) else ("superheat" if value >= 0 else "subcooling")
     if name == "dp_saturation_Pa":
-        return "p to curve" if math.isnan(value) else ("p over sat." if value >= 0 else "p under sat.")
+        return "p to curve" if math.isnan(value) else ("p over sat." if value >= 0 else "p under sat")
     if name == "dT_solid_K":
         return "to solid" if math.isnan(value) or value >= 0 else "in solid"
     return "to critical"
@@ -64,8 +64,9 @@ def bar(fraction: float, limit_fraction: float, width: int) -> str:
     filled = max(0.0, min(fraction, 1.0)) * width
     whole = int(filled)
     cells = ["█"] * whole
-    if whole < width:
-        cells.append(_EIGHTHS[int((filled - whole) * 8)])
+    eighths = int((filled - whole) * 8)
+    if whole < width and eighths:
+        cells.append(_EIGHTHS[eighths])
     cells += ["·"] * (width - len(cells))
     mark = int(limit_fraction * width)
     if 0 <= mark < width and cells[mark] in " ·":

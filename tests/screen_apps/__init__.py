@@ -1,0 +1,1 @@
+"""Small apps and sources for the screen's tests and snapshots."""

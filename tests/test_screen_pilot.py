@@ -1,0 +1,168 @@
+"""The screen driven by keys through Textual's headless pilot, over known states computed with thermo.
+
+The source is in memory (it replaces the gauge); the monitor, the feed and the widgets are the
+real ones. Expected values come from thermo itself: the screen must show what thermo says.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+import thermo
+from thermo.units import format_number
+from tui.cli import SAFETY_NOTE
+from screen_apps.memory import memory_app
+from tui.screen.screens.confirm_quit import ConfirmQuit
+from tui.screen.screens.help import HelpScreen
+from tui.screen.widgets.alarm_list import AlarmList
+from tui.screen.widgets.event_log import EventLog
+from tui.screen.widgets.live_readout import LiveReadout
+from tui.screen.widgets.margin_gauge import MarginGauge
+from tui.screen.widgets.phase_banner import PhaseBanner
+from tui.screen.widgets.phase_diagram import PhaseDiagram
+
+CO2 = thermo.fluid("CO2")
+SIZE = (100, 30)
+
+
+def steady(T, p, n=30):
+    """n samples 0.5 s apart at one state: long enough for the 2 s on-delays."""
+    return [(T, p)] * n
+
+
+async def settle(pilot, samples):
+    app = pilot.app
+    for _ in range(200):
+        if app.latest_view.samples >= samples and app.curves is not None:
+            break
+        await pilot.pause(0.05)
+    await pilot.pause(0.2)
+
+
+def subcooled_state(subcooling_K):
+    """CO2 at 10 °C compressed until it is `subcooling_K` below its saturation temperature."""
+    T = 283.15
+    p = float(CO2.saturation_pressure(T + subcooling_K))
+    return T, p
+
+
+async def test_liquid_shows_its_phase_and_subcooling_from_thermo():
+    T, p = subcooled_state(8.0)
+    states = steady(T, p)
+    app = memory_app(states)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, len(states))
+        screen = app.screen
+        assert screen.query_one(PhaseBanner).phase == "liquid"
+        margin = screen.query_one("#margin-dT_saturation_K", MarginGauge).text
+        dT = T - float(CO2.saturation_temperature(p))
+        assert "subcooling" in margin
+        assert format_number(abs(dT), 3) + " K" in margin
+        assert abs(abs(dT) - 8.0) < 0.05  # thermo's saturation curve and its inverse agree
+        readout = screen.query_one(LiveReadout).text
+        assert "10.00 °C" in readout and "bar(a)" in readout
+        assert "no alarms" in screen.query_one(AlarmList).text
+
+
+async def test_near_saturation_alarms_and_the_keys_acknowledge_and_shelve_it():
+    T, p = subcooled_state(0.5)  # inside the default 2 K saturation limit
+    states = steady(T, p)
+    app = memory_app(states)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, len(states))
+        alarms = app.screen.query_one(AlarmList)
+        assert "UNACK" in alarms.text and "saturation-temperature" in alarms.text
+        margin = app.screen.query_one("#margin-dT_saturation_K", MarginGauge)
+        assert margin.text.startswith("!") and margin.has_class("-beyond")
+        await pilot.press("a")
+        await pilot.pause(0.2)
+        assert "UNACK" not in alarms.text and "ack" in alarms.text
+        assert "ack" in app.screen.query_one(EventLog).text
+        await pilot.press("s")
+        await pilot.pause(0.2)
+        assert "shelved" in alarms.text
+
+
+async def test_units_switch_while_running():
+    T, p = subcooled_state(5.0)
+    app = memory_app(steady(T, p, 4))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, 4)
+        readout = app.screen.query_one(LiveReadout)
+        await pilot.press("u")
+        await pilot.pause(0.2)
+        gauge = (p - 101325.0) / 1e5
+        assert f"{format_number(gauge, 5)} bar(g)" in readout.text
+        await pilot.press("t")
+        await pilot.pause(0.2)
+        assert "283.15 K" in readout.text
+
+
+async def test_diagram_keys_switch_view_and_zoom():
+    T, p = subcooled_state(5.0)
+    app = memory_app(steady(T, p, 4))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, 4)
+        diagram = app.screen.query_one(PhaseDiagram)
+        assert diagram.border_title.startswith("p–T") and "●" in diagram.text
+        await pilot.press("d")
+        assert diagram.border_title.startswith("p–v")
+        await pilot.press("z")
+        assert "near now" in diagram.border_title
+        assert "●" in diagram.text
+
+
+async def test_help_lists_the_keys_and_the_safety_line():
+    app = memory_app(steady(*subcooled_state(5.0), 2))
+    async with app.run_test(size=(100, 40)) as pilot:
+        assert SAFETY_NOTE in str(app.screen.query_one("#safety").render())
+        await pilot.press("question_mark")
+        assert isinstance(app.screen, HelpScreen)
+        text = "\n".join(str(w.render()) for w in app.screen.query("Static"))
+        assert SAFETY_NOTE in text
+        for words in ("acknowledge", "shelve", "note", "pause", "zoom"):
+            assert words in text
+        await pilot.press("escape")
+        assert not isinstance(app.screen, HelpScreen)
+
+
+async def test_note_goes_into_the_run_log_and_quitting_asks_first(tmp_path):
+    from tui.record import RunRecorder
+
+    recorder = RunRecorder(tmp_path)
+    app = memory_app(steady(*subcooled_state(5.0), 4), recorder=recorder)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, 4)
+        await pilot.press("m")
+        await pilot.press(*"valve V2 opened")
+        await pilot.press("enter")
+        await pilot.pause(0.2)
+        assert "valve V2 opened" in app.screen.query_one(EventLog).text
+        await pilot.press("q")
+        assert isinstance(app.screen, ConfirmQuit)
+        await pilot.press("n")
+        assert not isinstance(app.screen, ConfirmQuit)
+        await pilot.press("q", "y")
+    app.session.close(2.0)
+    log = recorder.path.read_text(encoding="utf-8")
+    assert "valve V2 opened" in log
+
+
+async def test_fluid_switch_reclassifies_with_the_new_fluid():
+    app = memory_app(steady(300.0, 1e5, 4))
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, 4)
+        await pilot.press("f")
+        keys = thermo.fluids()
+        here = keys.index(app.session.fluid.key)
+        step, target = ("down", keys[here + 1]) if here + 1 < len(keys) else ("up", keys[here - 1])
+        await pilot.press(step, "enter")
+        await pilot.pause(0.2)
+        assert app.session.fluid.key == target
+        assert app.latest_view.fluid == thermo.fluid(target).name
+        for _ in range(100):
+            if app.curves is not None:
+                break
+            await pilot.pause(0.05)
+        assert app.curves.name == thermo.fluid(target).name
