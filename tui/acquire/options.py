@@ -45,17 +45,44 @@ class SourceOptions:
         return cls(**(values | overrides))
 
 
-def add_source_arguments(parser: argparse.ArgumentParser) -> None:
-    """The source options, named the same in every command that opens a source."""
+def add_table_arguments(group) -> None:
+    """Units and columns of values read from text: shared by sources and by `analyze` (which reads
+    logs and CSV files but opens no device)."""
     from thermo.units import parse_atmosphere
 
-    group = parser.add_argument_group("source")
-    group.add_argument("--profile", metavar="FILE", help="gauge profile (TOML); default: the generic line format")
     group.add_argument("--pressure-unit", metavar="UNIT", help="unit of pressures sent without one, e.g. bar, psig, kPa(g)")
     group.add_argument("--temperature-unit", metavar="UNIT", help="unit of temperatures sent without one, e.g. degC, K")
     group.add_argument("--gauge", action="store_true", default=None, help="bare pressure units are gauge (read against --atmosphere)")
     group.add_argument("--atmosphere", dest="atmosphere_Pa", type=parse_atmosphere, metavar="P",
                        help="local atmosphere for gauge pressures, e.g. '1008 hPa' (default 101325 Pa)")
+    group.add_argument("--time-column", metavar="NAME", help="time column of a CSV replay")
+    group.add_argument("--pressure-column", metavar="NAME", help="pressure column of a CSV replay, e.g. 'p [bar]'")
+    group.add_argument("--temperature-column", metavar="NAME", help="temperature column of a CSV replay")
+
+
+def add_table_arguments(group) -> None:
+    """Units and column names of values that do not say them (CSV replays, bare gauge lines).
+
+    `group` is a parser or an argument group; the destinations match `SourceOptions` and
+    `tui.record.table.read_table`'s keywords.
+    """
+    from thermo.units import parse_atmosphere
+
+    group.add_argument("--pressure-unit", metavar="UNIT", help="unit of pressures given without one, e.g. bar, psig, kPa(g)")
+    group.add_argument("--temperature-unit", metavar="UNIT", help="unit of temperatures given without one, e.g. degC, K")
+    group.add_argument("--gauge", action="store_true", default=None, help="bare pressure units are gauge (read against --atmosphere)")
+    group.add_argument("--atmosphere", dest="atmosphere_Pa", type=parse_atmosphere, metavar="P",
+                       help="local atmosphere for gauge pressures, e.g. '1008 hPa' (default 101325 Pa)")
+    group.add_argument("--time-column", metavar="NAME", help="time column of a CSV file")
+    group.add_argument("--pressure-column", metavar="NAME", help="pressure column of a CSV file, e.g. 'p [bar]'")
+    group.add_argument("--temperature-column", metavar="NAME", help="temperature column of a CSV file")
+
+
+def add_source_arguments(parser: argparse.ArgumentParser) -> None:
+    """Every source option, named the same in each command that opens a source."""
+    group = parser.add_argument_group("source")
+    group.add_argument("--profile", metavar="FILE", help="gauge profile (TOML); default: the generic line format")
+    add_table_arguments(group)
     group.add_argument("--baud", dest="baudrate", type=int, metavar="N", help="serial baud rate (default: profile, else 9600)")
     group.add_argument("--bytesize", type=int, choices=(5, 6, 7, 8), help="serial data bits")
     group.add_argument("--parity", choices=("N", "E", "O", "M", "S"), help="serial parity")
@@ -65,6 +92,3 @@ def add_source_arguments(parser: argparse.ArgumentParser) -> None:
                        help="largest time between paired pressure and temperature readings [s] (default 0.5)")
     group.add_argument("--speed", type=float, metavar="X", help="replay pace: 1 as recorded, 0 as fast as possible")
     group.add_argument("--modbus-unit", type=int, metavar="ID", help="Modbus device id")
-    group.add_argument("--time-column", metavar="NAME", help="time column of a CSV replay")
-    group.add_argument("--pressure-column", metavar="NAME", help="pressure column of a CSV replay, e.g. 'p [bar]'")
-    group.add_argument("--temperature-column", metavar="NAME", help="temperature column of a CSV replay")

@@ -1,0 +1,72 @@
+"""`rigside simulate SCENARIO`: a virtual gauge on a pseudo-terminal or a TCP port.
+
+The first line on stdout is where to connect (a pty path, `socket://127.0.0.1:PORT`, or
+`modbus-tcp://127.0.0.1:PORT` for a Modbus profile), so scripts can start it and read one line.
+"""
+
+from __future__ import annotations
+
+import sys
+import threading
+from dataclasses import replace
+
+from tui.acquire.profile import load_profile
+from tui.acquire.scenario import builtin_scenarios, load_scenario
+from tui.acquire.simulator import PtyOutlet, Simulator, TcpOutlet
+from tui.errors import UsageError
+
+
+def add_parser(subparsers) -> None:
+    parser = subparsers.add_parser(
+        "simulate",
+        help="play an invented scenario as a virtual gauge on a pty or a TCP port",
+        description="Play a scenario (ramps and holds of pressure and temperature, with noise and faults) "
+        "as a gauge would send it. Prints where to connect as the first line on stdout. "
+        f"Built-in scenarios: {', '.join(builtin_scenarios())}.",
+    )
+    parser.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML) or built-in name")
+    where = parser.add_mutually_exclusive_group()
+    where.add_argument("--pty", action="store_true", help="speak on a new pseudo-terminal (the default)")
+    where.add_argument("--tcp", type=int, metavar="PORT", help="listen on 127.0.0.1:PORT (0: any free port)")
+    parser.add_argument("--profile", metavar="FILE", help="speak this gauge profile's protocol (its emit template, poll or Modbus registers)")
+    parser.add_argument("--speed", type=float, default=1.0, metavar="X", help="playback speed (default 1; 0: as fast as the reader takes it)")
+    parser.add_argument("--loop", action="store_true", help="start again at the end, for ever")
+
+
+def run(args) -> int:
+    scenario = load_scenario(args.scenario)
+    if args.loop:
+        scenario = replace(scenario, loop=True)
+    if args.speed < 0:
+        raise UsageError(f"--speed must be 0 (as fast as possible) or positive, got {args.speed:g}")
+    profile = load_profile(args.profile) if args.profile else None
+    stop = threading.Event()
+    if profile is not None and profile.modbus is not None:
+        return _serve_modbus(scenario, profile, args, stop)
+    outlet = TcpOutlet(args.tcp) if args.tcp is not None else PtyOutlet()
+    print(outlet.address, flush=True)
+    print(f"playing {scenario.name} ({scenario.duration:g} s at {scenario.rate_hz:g} Hz); ctrl+c stops", file=sys.stderr)
+    try:
+        Simulator(scenario, outlet, profile, args.speed).run(stop)
+    except KeyboardInterrupt:
+        pass
+    finally:
+        stop.set()
+        outlet.close()
+    return 0
+
+
+def _serve_modbus(scenario, profile, args, stop: threading.Event) -> int:
+    from tui.acquire.modbus_server import RegisterServer
+
+    if args.tcp is None:
+        raise UsageError("a Modbus profile is served over TCP: give --tcp PORT")
+    server = RegisterServer(profile, port=args.tcp)
+    print(f"modbus-tcp://127.0.0.1:{server.port}", flush=True)
+    try:
+        Simulator(scenario, None, profile, args.speed).serve_registers(server, stop)
+    except KeyboardInterrupt:
+        pass
+    finally:
+        server.close()
+    return 0
