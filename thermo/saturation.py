@@ -141,6 +141,13 @@ def solve(eos, T, *, tol: float = TOLERANCE, max_iter: int = MAX_ITERATIONS):
     the ladder's power law to the critical point. The pressure is that of the vapor phase.
     Returns NaN where T is NaN, outside [T_triple, T_c], or where Newton failed. Scalars in
     give floats out.
+
+    >>> from thermo.fluid import load_data
+    >>> from thermo.eos import HelmholtzEOS
+    >>> water = HelmholtzEOS(load_data("H2O"))
+    >>> p, rho_liquid, rho_vapor = solve(water, 450.0)
+    >>> round(p / 1e6, 9), round(rho_liquid * water.M, 6)  # IAPWS-95 two-phase table (from memory)
+    (0.932203564, 890.34125)
     """
     T = np.asarray(T, dtype=float)
     flat = T.reshape(-1)
@@ -201,6 +208,10 @@ class SaturationCurve:
     p_max is the equation's own pressure at the stated T_c: it can differ from the stated p_c
     by that equation's tolerance (CO2 -2e-7 relative; O2 and R-134a, whose equations put
     their critical point a little above the stated one, -3e-5 and -4e-5).
+
+    >>> from thermo import fluid
+    >>> round(fluid("water").saturation.temperature(101325.0), 3)  # IAPWS-95 normal boiling point (from memory)
+    373.124
     """
 
     def __init__(self, fit: dict):
@@ -237,9 +248,10 @@ class SaturationCurve:
         return self._slope(T)
 
     def temperature(self, p):
-        """Saturation temperature T_sat [K] at p [Pa]."""
+        """Saturation temperature T_sat [K] at p [Pa], kept inside [T_min, T_max]."""
         with np.errstate(divide="ignore", invalid="ignore"):
-            return self._temperature(np.log(p))
+            T = np.clip(self._temperature(np.log(p)), self.T_min, self.T_max)
+        return float(T) if T.ndim == 0 else T
 
     def densities(self, T):
         """(rho_liquid, rho_vapor) [mol/m3] on the saturation curve at T [K]."""
@@ -278,6 +290,7 @@ def fit_curve(eos) -> dict:
     degree, rtol, depth = FIT_SETTINGS["pressure"]
     pressure, e_p = fit_pieces(lambda T: solve(eos, T)[0], T_min, T_max,
                                degree=degree, rtol=rtol, max_depth=depth, strict=False)
+    pressure = ChebyshevPieces.from_dict(pressure.to_dict())  # as shipped, digits trimmed
     slope = pressure.derivative()
     p_min, p_max = pressure(np.array([T_min, T_max]))  # the ends of T_sat(p) are those of the fit
     degree, rtol, depth = FIT_SETTINGS["temperature"]

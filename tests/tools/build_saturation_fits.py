@@ -44,8 +44,6 @@ def measure(curve: SaturationCurve, eos: HelmholtzEOS, T: np.ndarray) -> dict:
 def build(key: str) -> dict:
     eos = HelmholtzEOS(load_data(key))
     fit = fit_curve(eos)
-    for name in ("pressure", "temperature", "liquid_density", "vapor_density"):  # what is shipped
-        fit[name] = json.loads(json.dumps(fit[name]))
     curve = SaturationCurve(fit)
     rng = np.random.default_rng(20261201)
     far = rng.uniform(curve.T_min, curve.T_max - NEAR_CRITICAL_K, SAMPLES)
