@@ -82,28 +82,3 @@ def ancillaries(data: dict) -> dict[str, Ancillary]:
     block = data["ancillaries"]
     return {k: Ancillary(block[k]) for k in ("vapor_pressure", "liquid_density", "vapor_density")}
 
-
-class AncillarySaturation:
-    """Saturation curve from the ancillary equations alone (approximate: see each ``max_error``).
-
-    Same calls as the solved curve of ``thermo.saturation``: pressure(T) [Pa], temperature(p) [K],
-    densities(T) -> (rho_liquid, rho_vapor) [mol/m3]; NaN outside T_min <= T <= T_r.
-    """
-
-    def __init__(self, data: dict):
-        self.equations = ancillaries(data)
-
-    def _inside(self, T, values):
-        eq = self.equations["vapor_pressure"]
-        T = np.asarray(T, dtype=float)
-        return np.where((T >= eq.T_min) & (T <= eq.T_max), values, np.nan)
-
-    def pressure(self, T) -> np.ndarray:
-        return self._inside(T, self.equations["vapor_pressure"](T))
-
-    def temperature(self, p) -> np.ndarray:
-        return self.equations["vapor_pressure"].inverse(p)
-
-    def densities(self, T) -> tuple[np.ndarray, np.ndarray]:
-        return (self._inside(T, self.equations["liquid_density"](T)),
-                self._inside(T, self.equations["vapor_density"](T)))

@@ -31,7 +31,7 @@ def peng_robinson_density(T, p, T_c: float, p_c: float, omega: float, R: float, 
 
     The smallest real root in Z where ``liquid``, the largest otherwise.
     """
-    T, p = np.asarray(T, dtype=float), np.asarray(p, dtype=float)
+    T, p = np.atleast_1d(np.asarray(T, dtype=float)), np.atleast_1d(np.asarray(p, dtype=float))
     kappa = 0.37464 + 1.54226 * omega - 0.26992 * omega**2
     alpha = (1 + kappa * (1 - np.sqrt(T / T_c))) ** 2
     A = 0.45724 * alpha * (T_c / T) ** 2 * p / p_c
@@ -40,14 +40,15 @@ def peng_robinson_density(T, p, T_c: float, p_c: float, omega: float, R: float, 
     q = (3 * c1 - c2**2) / 9
     r = (9 * c2 * c1 - 27 * c0 - 2 * c2**3) / 54
     disc = q**3 + r**2
-    with np.errstate(invalid="ignore", divide="ignore"):
-        root = np.sqrt(np.maximum(disc, 0))
-        single = np.cbrt(r + root) + np.cbrt(r - root) - c2 / 3
-        angle = np.arccos(np.clip(r / np.sqrt(np.maximum(-q, 1e-300) ** 3), -1, 1))
-        radius = 2 * np.sqrt(np.maximum(-q, 0))
-        three = np.stack([radius * np.cos((angle + 2 * np.pi * k) / 3) for k in range(3)]) - c2 / 3
-    pick = three.min(axis=0) if liquid else three.max(axis=0)
-    Z = np.where(disc > 0, single, np.maximum(pick, B))
+    one = disc > 0  # one real root (Cardano); else three, by the trigonometric form
+    Z = np.empty_like(disc)
+    root = np.sqrt(disc[one])
+    Z[one] = np.cbrt(r[one] + root) + np.cbrt(r[one] - root) - c2[one] / 3
+    three = ~one
+    minus_q = np.maximum(-q[three], 1e-100)
+    angle = np.arccos(np.clip(r[three] / np.sqrt(minus_q**3), -1, 1))
+    k = 1 if liquid else 0  # k = 1: the smallest root, k = 0: the largest
+    Z[three] = np.maximum(2 * np.sqrt(minus_q) * np.cos((angle + 2 * np.pi * k) / 3) - c2[three] / 3, B[three])
     return p / (Z * R * T)
 
 
@@ -69,12 +70,13 @@ class DensitySolver:
         self.delta_max = rho_max / eos.rho_r
 
     def solve(self, T: np.ndarray, p: np.ndarray, p_sat: np.ndarray, rho_liquid: np.ndarray,
-              rho_vapor: np.ndarray) -> np.ndarray:
+              rho_vapor: np.ndarray, prepared=None) -> np.ndarray:
         """Density [mol/m3] at 1-D arrays T [K], p [Pa].
 
         p_sat [Pa], rho_liquid and rho_vapor [mol/m3] describe the saturation curve at T (NaN at
         T >= T_c; p_sat = inf marks vapor below the triple point): the liquid root is sought where
         p > p_sat, the vapor root where p <= p_sat, the single fluid root at and above T_c.
+        ``prepared``: the residual's ``prepare(T_r/T)``, where the caller keeps it for the properties.
         """
         eos = self.eos
         below = T < self.T_c
@@ -91,7 +93,9 @@ class DensitySolver:
         start = np.where(vapor & known, np.fmin(start, rho_vapor / eos.rho_r), start)
         lo = np.where(liquid, self.delta_c, 0.0)
         hi = np.where(vapor, self.delta_c, self.delta_max)
-        delta, slope = self._newton(eos.T_r / T, pi, np.clip(start, lo, hi), lo, hi)
+        if prepared is None:
+            prepared = eos.residual.prepare(eos.T_r / T)
+        delta, slope = self._newton(prepared, pi, np.clip(start, lo, hi), lo, hi)
         good = (slope > 0) & np.where(liquid, delta > self.delta_c, True) & np.where(vapor, delta < self.delta_c, True)
         return np.where(good, delta * eos.rho_r, np.nan)
 
@@ -103,13 +107,17 @@ class DensitySolver:
             rho[m] = peng_robinson_density(T[m], p[m], self.T_c, self.p_c, self.omega, self.eos.R, liquid=branch)
         return rho
 
-    def _newton(self, tau, pi, delta, lo, hi):
-        """Safeguarded Newton on delta(1 + delta ar_d) = pi; returns delta and the reduced slope."""
+    def _newton(self, prepared, pi, delta, lo, hi):
+        """Safeguarded Newton on delta(1 + delta ar_d) = pi; returns delta and the reduced slope.
+
+        Finished states stay frozen in the working arrays until more than half are finished; only
+        then are the arrays compacted (gathering the tau factors costs about one iteration).
+        """
         residual = self.eos.residual
         result = np.full(delta.size, np.nan)
         slope_out = np.full(delta.size, np.nan)
         index = np.arange(delta.size)
-        prepared = residual.prepare(tau)
+        finished = np.zeros(delta.size, bool)
         for _ in range(MAX_ITERATIONS):
             ad, add = residual.delta_part(delta, prepared)
             f = delta * (1 + ad) - pi
@@ -121,15 +129,16 @@ class DensitySolver:
                 new = delta - f / slope
             accepted = stable & (new >= lo) & (new <= hi)
             new = np.where(accepted, new, 0.5 * (lo + hi))
-            done = np.abs(new - delta) <= STEP_TOLERANCE * new
-            failed = ~np.isfinite(f)
-            if done.any() or failed.any():
-                result[index[done]] = new[done]
-                slope_out[index[done]] = slope[done]
-                keep = ~(done | failed)
-                if not keep.any():
-                    break
-                index, new, lo, hi, pi = index[keep], new[keep], lo[keep], hi[keep], pi[keep]
+            done = (np.abs(new - delta) <= STEP_TOLERANCE * new) & ~finished
+            result[index[done]] = new[done]
+            slope_out[index[done]] = slope[done]
+            finished |= done | ~np.isfinite(f)
+            if finished.all():
+                break
+            delta = np.where(finished, delta, new)
+            if 2 * finished.sum() > finished.size:
+                keep = ~finished
+                index, delta, lo, hi, pi = index[keep], delta[keep], lo[keep], hi[keep], pi[keep]
                 prepared = _take(prepared, keep)
-            delta = new
+                finished = finished[keep]
         return result, slope_out

@@ -73,8 +73,9 @@ class HelmholtzEOS:
         ad, _ = self.residual.delta_part(delta, self.residual.prepare(tau))
         return (rho.ravel() * self.R * T.ravel() * (1 + ad)).reshape(rho.shape)
 
-    def state(self, rho, T) -> MolarState:
+    def state(self, rho, T, prepared=None) -> MolarState:
         """All properties at rho [mol/m3] and T [K]; any broadcastable shapes, NaN in -> NaN out.
+        ``prepared``: ``residual.prepare(T_r/T)`` for 1-D T, where the caller already has it.
 
         Formulas (Span 2000, Table 3.3; Wagner & Pruss 2002, Table 6.3), with the scaled
         derivatives of ``thermo.helmholtz``:
@@ -87,7 +88,7 @@ class HelmholtzEOS:
         shape = rho.shape
         rho, T = rho.ravel(), T.ravel()
         delta, tau = self.reduce(rho, T)
-        r = self.residual.scaled(delta, tau)
+        r = self.residual.scaled(delta, tau, prepared)
         with np.errstate(divide="ignore", invalid="ignore"):
             a0, a0_t, a0_tt = self.ideal.scaled(delta, tau)
             RT = self.R * T

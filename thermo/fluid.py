@@ -14,15 +14,14 @@ from typing import NamedTuple
 
 import numpy as np
 
-from thermo.ancillary import AncillarySaturation
+from thermo.ancillary import ancillaries
 from thermo.density import DensitySolver
 from thermo.eos import HelmholtzEOS
+from thermo.saturation import SaturationCurve
 
 #: states per block of vectorized work: large enough to amortize numpy's per-call cost,
 #: small enough for the (states x terms) temporaries to stay in cache (DESIGN.md, section 5)
 CHUNK = 8192
-#: the vapor branch is extrapolated below the triple point down to this share of T_triple
-VAPOR_EXTRAPOLATION_T_RATIO = 0.5
 #: densities are sought up to this multiple of the triple-point liquid density
 DENSITY_SEARCH_LIMIT = 3.0
 
@@ -128,9 +127,10 @@ class Fluid:
         return f"fluid({self.key!r})"
 
     @functools.cached_property
-    def saturation(self):
-        """The vapor-liquid saturation curve: pressure(T), temperature(p), densities(T) [mol/m3]."""
-        return AncillarySaturation(self._data)
+    def saturation(self) -> SaturationCurve:
+        """The vapor-liquid saturation curve solved from the equation of state (``thermo.saturation``):
+        pressure(T) [Pa], dpdT(T) [Pa/K], temperature(p) [K], densities(T) [mol/m3]."""
+        return SaturationCurve.for_fluid(self.key, self.eos)
 
     # ------------------------------------------------------------ saturation
     def saturation_pressure(self, T):
@@ -156,26 +156,17 @@ class Fluid:
         triple point (under the sublimation curve) evaluated on the extrapolated vapor branch."""
         in_p = (p > 0) & (p <= self.range.p_max)
         inside = in_p & (T >= self.range.T_min) & (T <= self.range.T_max)
-        cold = in_p & (T < self.range.T_min) & (T >= VAPOR_EXTRAPOLATION_T_RATIO * self.triple.T)
-        with np.errstate(invalid="ignore"):
-            cold &= p < self._vapor_limit_below_triple(np.where(cold, T, self.triple.T))
+        cold = in_p & (T < self.range.T_min) & (T >= 0.5 * self.triple.T)
+        with np.errstate(invalid="ignore"):  # until the sublimation curves land: the vapor-pressure ancillary
+            cold &= p < ancillaries(self._data)["vapor_pressure"](np.where(cold, T, self.triple.T))
         return inside, cold
 
-    def _vapor_limit_below_triple(self, T: np.ndarray) -> np.ndarray:
-        """Pressure [Pa] under which vapor is the stable phase below T_triple."""
-        return self.saturation.equations["vapor_pressure"](T)
-
-    def _molar_density(self, T: np.ndarray, p: np.ndarray) -> np.ndarray:
-        """Density [mol/m3] of 1-D states known to be in the domain, chunk by chunk."""
-        out = np.empty(T.size)
-        for start in range(0, T.size, CHUNK):
-            sl = slice(start, start + CHUNK)
-            t = T[sl]
-            p_sat = np.where(t < self.critical.T, self.saturation.pressure(np.maximum(t, self.triple.T)), np.nan)
-            p_sat = np.where(t < self.triple.T, np.inf, p_sat)  # cold states are vapor by construction
-            rho_liquid, rho_vapor = self.saturation.densities(np.clip(t, self.triple.T, self.critical.T))
-            out[sl] = self._solver.solve(t, p[sl], p_sat, rho_liquid, rho_vapor)
-        return out
+    def _solve_chunk(self, T: np.ndarray, p: np.ndarray, prepared=None) -> np.ndarray:
+        """Density [mol/m3] of one chunk of 1-D states in the domain (``prepared``: tau factors)."""
+        p_sat = np.where(T < self.critical.T, self.saturation.pressure(np.maximum(T, self.triple.T)), np.nan)
+        p_sat = np.where(T < self.triple.T, np.inf, p_sat)  # cold states are vapor by construction
+        rho_liquid, rho_vapor = self.saturation.densities(np.clip(T, self.triple.T, self.critical.T))
+        return self._solver.solve(T, p, p_sat, rho_liquid, rho_vapor, prepared)
 
     def density(self, T, p):
         """Density [kg/m3] of the single-phase state at T [K], p [Pa].
@@ -188,9 +179,11 @@ class Fluid:
         """
         T, p, shape = _as_arrays(T, p)
         inside, cold = self._domain(T, p)
-        use = inside | cold
+        use = np.flatnonzero(inside | cold)
         rho = np.full(T.size, np.nan)
-        rho[use] = self._molar_density(T[use], p[use])
+        for start in range(0, use.size, CHUNK):
+            idx = use[start:start + CHUNK]
+            rho[idx] = self._solve_chunk(T[idx], p[idx])
         return _shaped(rho * self.molar_mass, shape)
 
     def properties(self, T, p) -> dict[str, np.ndarray]:
@@ -207,10 +200,13 @@ class Fluid:
         out = {k: np.full(T.size, np.nan) for k in PROPERTY_NAMES}
         for start in range(0, use.size, CHUNK):
             idx = use[start:start + CHUNK]
-            rho = self._molar_density(T[idx], p[idx])
-            s = self.eos.state(rho, T[idx])
+            t = T[idx]
+            prepared = self.eos.residual.prepare(self.eos.T_r / t)
+            rho = self._solve_chunk(t, p[idx], prepared)
+            s = self.eos.state(rho, t, prepared)
             M = self.molar_mass
-            for key, value in (("density", rho * M), ("molar_volume", s.molar_volume), ("Z", s.Z),
+            Z = p[idx] / (rho * self.eos.R * t)  # from the given p: 1 + delta ar_d cancels in liquids
+            for key, value in (("density", rho * M), ("molar_volume", s.molar_volume), ("Z", Z),
                                ("alpha_p", s.alpha_p), ("kappa_T", s.kappa_T), ("cp", s.cp / M), ("cv", s.cv / M),
                                ("speed_of_sound", s.w), ("enthalpy", s.h / M), ("entropy", s.s / M)):
                 out[key][idx] = value

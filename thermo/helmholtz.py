@@ -105,6 +105,7 @@ class PowerTerms:
         order = np.lexsort((d, l))
         self.n, self.t, self.d, self.l = c["n"][order], c["t"][order], d[order], l[order]
         self.highest = int(max(self.d.max(), self.l.max()))
+        self.t_values, self.t_index = np.unique(self.t, return_inverse=True)  # tau^t once per distinct t
         # one slice of terms per exponent l; the delta sums are matrix products with columns
         # 1, d, d(d-1), 2d-1 (delta part) and t, t(t-1), d t (tau part)
         self.groups = []
@@ -116,7 +117,7 @@ class PowerTerms:
             self.groups.append((int(value), sl, weights))
 
     def prepare(self, tau: np.ndarray) -> np.ndarray:
-        return _column(self.n) * _tau_powers(tau, self.t)
+        return _column(self.n) * _tau_powers(tau, self.t_values)[self.t_index]
 
     def _sums(self, delta: np.ndarray, prepared: np.ndarray, rows: slice):
         powers = _delta_powers(delta, self.highest)
@@ -266,21 +267,25 @@ class NonAnalyticTerms:
     def prepare(self, tau: np.ndarray) -> np.ndarray:
         return tau
 
-    def delta_part(self, delta: np.ndarray, prepared: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        s = self.scaled(delta, prepared)
-        return s.d, s.dd
+    def delta_part(self, delta: np.ndarray, tau: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        return tuple(self._near(delta, tau, tau_derivatives=False))
 
     def scaled(self, delta: np.ndarray, tau: np.ndarray) -> Scaled:
+        return Scaled(*self._near(delta, tau, tau_derivatives=True))
+
+    def _near(self, delta: np.ndarray, tau: np.ndarray, tau_derivatives: bool) -> list[np.ndarray]:
+        """The sums of ``_terms`` where the terms are not negligible, zero elsewhere."""
         C, D = self.c["C"], self.c["D"]
         exponent = -C * (delta - 1) ** 2 - D * (tau - 1) ** 2
         near = np.flatnonzero((exponent > self.NEGLIGIBLE_EXPONENT).any(axis=0))
-        out = Scaled(*(np.zeros_like(delta) for _ in Scaled._fields))
+        out = [np.zeros_like(delta) for _ in range(6 if tau_derivatives else 2)]
         if near.size:
-            for total, part in zip(out, self._terms(delta[near], tau[near])):
+            for total, part in zip(out, self._terms(delta[near], tau[near], tau_derivatives)):
                 total[near] = part
         return out
 
-    def _terms(self, x: np.ndarray, y: np.ndarray) -> Scaled:
+    def _terms(self, x: np.ndarray, y: np.ndarray, tau_derivatives: bool = True) -> list[np.ndarray]:
+        """Scaled derivatives summed over the terms: (a, d, dd, t, tt, dt), or (d, dd) alone."""
         n, a, b, beta, A, B, C, D = (self.c[k] for k in self.fields)
         dm1, tm1 = x - 1, y - 1
         s = np.maximum(dm1 * dm1, 1e-300)  # powers below are of s^e/s with e > 1: 0 at delta = 1
@@ -297,23 +302,25 @@ class NonAnalyticTerms:
         Db2 = (b - 1) * Db1 / Dl
         Db_d = Db1 * Dl_d
         Db_dd = Db1 * Dl_dd + Db2 * Dl_d * Dl_d
-        Db_t = -2 * theta * Db1
-        Db_tt = 2 * Db1 + 4 * theta * theta * Db2
-        Db_dt = -A * (2 / beta) * Db1 * dm1 * s_half / s - 2 * theta * Db2 * Dl_d
         psi = np.exp(-C * s - D * tm1 * tm1)
         psi_d = -2 * C * dm1 * psi
         psi_dd = (2 * C * s - 1) * 2 * C * psi
+        phi_d = n * (Db * (psi + x * psi_d) + Db_d * x * psi)
+        phi_dd = n * (Db * (2 * psi_d + x * psi_dd) + 2 * Db_d * (psi + x * psi_d) + Db_dd * x * psi)
+        if not tau_derivatives:
+            return [(x * phi_d).sum(0), (x * x * phi_dd).sum(0)]
+        Db_t = -2 * theta * Db1
+        Db_tt = 2 * Db1 + 4 * theta * theta * Db2
+        Db_dt = -A * (2 / beta) * Db1 * dm1 * s_half / s - 2 * theta * Db2 * Dl_d
         psi_t = -2 * D * tm1 * psi
         psi_tt = (2 * D * tm1 * tm1 - 1) * 2 * D * psi
         psi_dt = 4 * C * D * dm1 * tm1 * psi
         phi = n * Db * x * psi
-        phi_d = n * (Db * (psi + x * psi_d) + Db_d * x * psi)
-        phi_dd = n * (Db * (2 * psi_d + x * psi_dd) + 2 * Db_d * (psi + x * psi_d) + Db_dd * x * psi)
         phi_t = n * x * (Db_t * psi + Db * psi_t)
         phi_tt = n * x * (Db_tt * psi + 2 * Db_t * psi_t + Db * psi_tt)
         phi_dt = n * (Db * (psi_t + x * psi_dt) + x * Db_d * psi_t + Db_t * (psi + x * psi_d) + Db_dt * x * psi)
-        return Scaled(phi.sum(0), (x * phi_d).sum(0), (x * x * phi_dd).sum(0), (y * phi_t).sum(0),
-                      (y * y * phi_tt).sum(0), (x * y * phi_dt).sum(0))
+        return [phi.sum(0), (x * phi_d).sum(0), (x * x * phi_dd).sum(0), (y * phi_t).sum(0),
+                (y * y * phi_tt).sum(0), (x * y * phi_dt).sum(0)]
 
 
 RESIDUAL_FAMILIES = {"power": PowerTerms, "gaussian": GaussianTerms, "nonanalytic": NonAnalyticTerms,
@@ -347,11 +354,13 @@ class ResidualHelmholtz:
             add += y
         return ad, add
 
-    def scaled(self, delta: np.ndarray, tau: np.ndarray) -> Scaled:
-        """All scaled derivatives at 1-D arrays delta, tau [-]."""
+    def scaled(self, delta: np.ndarray, tau: np.ndarray, prepared: list[Any] | None = None) -> Scaled:
+        """All scaled derivatives at 1-D arrays delta, tau [-] (``prepared``: ``prepare(tau)``, if at hand)."""
+        if prepared is None:
+            prepared = self.prepare(tau)
         total = None
-        for family in self.families:
-            part = family.scaled(delta, family.prepare(tau))
+        for family, p in zip(self.families, prepared):
+            part = family.scaled(delta, p)
             total = part if total is None else total + part
         return total
 
