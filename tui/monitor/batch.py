@@ -37,13 +37,14 @@ class BatchResult:
 
 
 def run_batch(t_s, pressure_Pa, temperature_K, quality, config: MonitorConfig, *,
-              t_wall=None, reasons=None) -> BatchResult:
+              t_wall=None, reasons=None, raw=None) -> BatchResult:
     """Run the monitor over whole arrays.
 
     t_s: time since the start of the run [s], non-decreasing; pressure_Pa [Pa absolute] and
     temperature_K [K]; quality: NAMUR NE 107 labels (str, e.g. "ok", "failure") or codes
     (positions in tui.monitor.frame.QUALITIES); t_wall: wall-clock time [s since the epoch]
-    for the events (default NaN); reasons: per-sample tuples of quality reasons (optional).
+    for the events (default NaN); reasons (per-sample tuples of quality reasons) and raw
+    (per-sample records as received) word the quality events as they were worded live.
     """
     t_s = np.asarray(t_s, dtype=float)
     n = t_s.size
@@ -59,7 +60,8 @@ def run_batch(t_s, pressure_Pa, temperature_K, quality, config: MonitorConfig, *
     for start in range(0, n, CHUNK):
         s = slice(start, start + CHUNK)
         step = engine.step(t_s[s], t_wall[s], pressure[s], temperature[s], codes[s], valid[s], phase[s],
-                           margins[:, s], None if reasons is None else tuple(reasons[s]))
+                           margins[:, s], None if reasons is None else tuple(reasons[s]),
+                           None if raw is None else tuple(raw[s]))
         rates[:, s], to_boundary[:, s], active[:, s] = step.rates, step.time_to_boundary, step.active
         events += step.events
     return BatchResult(

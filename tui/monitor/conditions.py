@@ -205,11 +205,19 @@ class QualityIn(Condition):
         return f"back to normal: sensor quality {quality_text(frame, index)}"
 
 
+#: characters of a bad record quoted in a message
+RAW_QUOTED = 80
+
+
 def quality_text(frame: Frame, index: int) -> str:
-    """'failure (pressure outside span 0..100 bar)', from the sample's quality and reasons."""
-    text = QUALITIES[int(frame.quality[index])].value
-    reasons = frame.reasons[index] if frame.reasons is not None else ()
-    return f"{text} ({'; '.join(reasons)})" if reasons else text
+    """"failure (malformed: ...; received 'p=?? T=21')", from the sample's quality, reasons and
+    record (quoted, so a person sees what the gauge sent)."""
+    quality = QUALITIES[int(frame.quality[index])]
+    details = list(frame.reasons[index]) if frame.reasons is not None else []
+    raw = frame.raw[index] if frame.raw is not None else ""
+    if raw and quality.value != "ok":
+        details.append(f"received {raw[:RAW_QUOTED]!r}")
+    return f"{quality.value} ({'; '.join(details)})" if details else quality.value
 
 
 #: phase conditions: name -> (labels, alarm message, clear message)

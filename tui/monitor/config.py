@@ -296,17 +296,20 @@ class MonitorConfig:
         return json.loads(json.dumps(self.effective))
 
 
-def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = None) -> MonitorConfig:
+def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = None,
+                fallback_fluid: str | None = None) -> MonitorConfig:
     """The effective configuration: defaults, fluid-suited values, the file at `path`, then `fluid`.
 
-    Raises UsageError with a one-line message naming the file and key for any bad input.
+    `fallback_fluid` (e.g. the fluid a scenario or a replayed log names) applies when neither
+    `fluid` nor the file names one. Raises UsageError with a one-line message naming the
+    file and key for any bad input.
     """
     defaults = tomllib.loads(default_text())
     own = _read_file(path) if path is not None else {}
     where = str(path) if path is not None else "defaults"
     try:
         _check_tree(own, "")
-        chosen = fluid or own.get("fluid") or defaults["fluid"]
+        chosen = fluid or own.get("fluid") or fallback_fluid or defaults["fluid"]
         layers = [
             _without_fluid_defaults(defaults),
             _fluid_layer(defaults, chosen),
@@ -317,7 +320,7 @@ def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = No
         effective = _normalise(_merge(layers))
         return _build(effective, where)
     except UsageError as exc:
-        raise UsageError(f"config {where}: {exc}") from None
+        raise UsageError(f"configuration {where}: {exc}") from None
 
 
 def _read_file(path) -> dict:
@@ -325,9 +328,9 @@ def _read_file(path) -> dict:
         with open(path, "rb") as handle:
             return tomllib.load(handle)
     except tomllib.TOMLDecodeError as exc:
-        raise UsageError(f"config {path}: not valid TOML ({exc})") from None
+        raise UsageError(f"configuration {path}: not valid TOML ({exc})") from None
     except FileNotFoundError:
-        raise UsageError(f"config {path}: no such file") from None
+        raise UsageError(f"configuration {path}: no such file") from None
 
 
 def _check_tree(tree: dict, prefix: str) -> None:

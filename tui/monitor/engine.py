@@ -65,10 +65,12 @@ class Engine:
         )
         self._last: tuple[Frame, list[Judgement]] | None = None
 
-    def step(self, t_s, t_wall, pressure_Pa, temperature_K, quality, valid, phase, margins, reasons=None) -> Step:
-        """One chunk: arrays of n samples (margins MARGINS x n), phase and quality as codes."""
+    def step(self, t_s, t_wall, pressure_Pa, temperature_K, quality, valid, phase, margins,
+             reasons=None, raw=None) -> Step:
+        """One chunk: arrays of n samples (margins MARGINS x n), phase and quality as codes;
+        reasons and raw records (tuples of n) for the wording of quality events, if known."""
         rates = self._trend(t_s, margins)
-        frame = Frame(t_s, t_wall, pressure_Pa, temperature_K, quality, valid, phase, margins, rates, reasons)
+        frame = Frame(t_s, t_wall, pressure_Pa, temperature_K, quality, valid, phase, margins, rates, reasons, raw)
         judgements = [condition.judge(frame) for condition in self.conditions]
         decisions = np.array([j.decision for j in judgements], dtype=np.int8).reshape(len(judgements), frame.size)
         gate = valid[None, :] | ~self._gated

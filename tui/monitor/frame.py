@@ -69,6 +69,8 @@ class Frame:
     """Rates of the margins, same shape [unit/s]."""
     reasons: tuple[tuple[str, ...], ...] | None = None
     """Why each sample's quality is not ok (None when not known, as in a log without them)."""
+    raw: tuple[str, ...] | None = None
+    """Each sample's record as received (None when not known)."""
 
     @property
     def size(self) -> int:

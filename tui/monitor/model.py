@@ -32,6 +32,8 @@ class Reading:
     inf when it is not closing, NaN when unknown."""
     active_alarms: tuple[str, ...] = ()
     """Conditions whose alarm is active (unacknowledged or acknowledged) after this sample."""
+    t_s: float = float("nan")
+    """Time since the start of the run [s] (the monitor's run clock, as in Event.t_s)."""
 
 
 @dataclass(frozen=True, slots=True)

@@ -85,20 +85,21 @@ class Monitor:
         pressure = np.fromiter((s.pressure_Pa for s in samples), float, n)
         temperature = np.fromiter((s.temperature_K for s in samples), float, n)
         quality = np.fromiter((QUALITY_CODE[s.quality] for s in samples), np.int8, n)
-        reasons = tuple(s.reasons for s in samples)
+        reasons, raw = tuple(s.reasons for s in samples), tuple(s.raw for s in samples)
         valid, labels, margins = self._classifier(pressure, temperature, quality)
         phase = self._engine.phases.encode(labels)
-        step = self._engine.step(t_s, t_wall, pressure, temperature, quality, valid, phase, margins, reasons)
-        return self._readings(samples, labels, margins, step), step.events
+        step = self._engine.step(t_s, t_wall, pressure, temperature, quality, valid, phase, margins, reasons, raw)
+        return self._readings(samples, t_s, labels, margins, step), step.events
 
-    def _readings(self, samples, labels, margins, step) -> list[Reading]:
+    def _readings(self, samples, t_s, labels, margins, step) -> list[Reading]:
         weights = 1 << np.arange(step.active.shape[0], dtype=np.int64)
         masks = (weights @ step.active.astype(np.int64)).tolist() if step.active.size else [0] * len(samples)
         return [
-            Reading(sample, phase, dict(zip(MARGINS, m)), dict(zip(MARGINS, r)), dict(zip(MARGINS, b)), self._names(mask))
-            for sample, phase, m, r, b, mask in zip(
+            Reading(sample, phase, dict(zip(MARGINS, m)), dict(zip(MARGINS, r)), dict(zip(MARGINS, b)),
+                    self._names(mask), t)
+            for sample, phase, m, r, b, mask, t in zip(
                 samples, labels.tolist(), margins.T.tolist(), step.rates.T.tolist(),
-                step.time_to_boundary.T.tolist(), masks,
+                step.time_to_boundary.T.tolist(), masks, t_s.tolist(),
             )
         ]
 
@@ -243,11 +244,19 @@ def _drain(inbox: queue.SimpleQueue, wait_s: float) -> tuple[list, bool, BaseExc
 
 
 def _deliver(monitor: Monitor, sinks: list[Sink], items: list, now: float | None) -> None:
-    """Statuses to the sinks as they come; the samples as one chunk through the monitor."""
-    samples = [item for item in items if isinstance(item, Sample)]
-    for report in (item for item in items if isinstance(item, SourceStatus)):
-        for sink in sinks:
-            sink.status(report)
+    """The samples between status reports as one chunk each through the monitor, and the
+    reports in their place, so every sink sees them in arrival order."""
+    start = 0
+    for index, item in enumerate(items):
+        if isinstance(item, SourceStatus):
+            _write(monitor, sinks, items[start:index], None)
+            for sink in sinks:
+                sink.status(item)
+            start = index + 1
+    _write(monitor, sinks, items[start:], now)
+
+
+def _write(monitor: Monitor, sinks: list[Sink], samples: list[Sample], now: float | None) -> None:
     readings, events = monitor.process(samples, now=now)
     if readings or events:
         for sink in sinks:
