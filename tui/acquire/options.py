@@ -46,21 +46,6 @@ class SourceOptions:
 
 
 def add_table_arguments(group) -> None:
-    """Units and columns of values read from text: shared by sources and by `analyze` (which reads
-    logs and CSV files but opens no device)."""
-    from thermo.units import parse_atmosphere
-
-    group.add_argument("--pressure-unit", metavar="UNIT", help="unit of pressures sent without one, e.g. bar, psig, kPa(g)")
-    group.add_argument("--temperature-unit", metavar="UNIT", help="unit of temperatures sent without one, e.g. degC, K")
-    group.add_argument("--gauge", action="store_true", default=None, help="bare pressure units are gauge (read against --atmosphere)")
-    group.add_argument("--atmosphere", dest="atmosphere_Pa", type=parse_atmosphere, metavar="P",
-                       help="local atmosphere for gauge pressures, e.g. '1008 hPa' (default 101325 Pa)")
-    group.add_argument("--time-column", metavar="NAME", help="time column of a CSV replay")
-    group.add_argument("--pressure-column", metavar="NAME", help="pressure column of a CSV replay, e.g. 'p [bar]'")
-    group.add_argument("--temperature-column", metavar="NAME", help="temperature column of a CSV replay")
-
-
-def add_table_arguments(group) -> None:
     """Units and column names of values that do not say them (CSV replays, bare gauge lines).
 
     `group` is a parser or an argument group; the destinations match `SourceOptions` and
