@@ -23,11 +23,14 @@ class Section:
 
 
 def render_text(table: Table) -> str:
-    """Columns padded to their widest cell, numbers and text alike left-aligned."""
+    """Columns padded to their widest cell, left-aligned; no header lines when it is blank."""
     cells = [table.headers, *table.rows]
     widths = [max(len(row[i]) for row in cells) for i in range(len(table.headers))]
     lines = ["  ".join(cell.ljust(width) for cell, width in zip(row, widths)).rstrip() for row in cells]
-    lines.insert(1, "  ".join("-" * width for width in widths))
+    if any(table.headers):
+        lines.insert(1, "  ".join("-" * width for width in widths))
+    else:
+        del lines[0]
     return "\n".join(lines + ([table.note] if table.note else []))
 
 
@@ -43,7 +46,8 @@ def render_html(table: Table) -> str:
     head = "".join(f"<th>{html.escape(h)}</th>" for h in table.headers)
     body = "".join("<tr>" + "".join(f"<td>{html.escape(c)}</td>" for c in row) + "</tr>" for row in table.rows)
     note = f"<p class=\"note\">{html.escape(table.note)}</p>" if table.note else ""
-    return f"<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>{note}"
+    thead = f"<thead><tr>{head}</tr></thead>" if any(table.headers) else ""
+    return f"<table>{thead}<tbody>{body}</tbody></table>{note}"
 
 
 def render_csv(table: Table) -> str:
