@@ -304,9 +304,14 @@ def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = No
     `fluid` nor the file names one. Raises UsageError with a one-line message naming the
     file and key for any bad input.
     """
-    defaults = tomllib.loads(default_text())
     own = _read_file(path) if path is not None else {}
-    where = str(path) if path is not None else "defaults"
+    return config_from_tree(own, str(path) if path is not None else "defaults", fluid=fluid, fallback_fluid=fallback_fluid)
+
+
+def config_from_tree(own: dict, where: str, *, fluid: str | None = None, fallback_fluid: str | None = None) -> MonitorConfig:
+    """`load_config` for a tree already read, e.g. the effective configuration a run log recorded
+    (its numbers are SI, which every key accepts); `where` names it in messages."""
+    defaults = tomllib.loads(default_text())
     try:
         _check_tree(own, "")
         chosen = fluid or own.get("fluid") or fallback_fluid or defaults["fluid"]
