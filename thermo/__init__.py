@@ -8,5 +8,6 @@ Pure computation (numpy, scipy, stdlib); SI units in and out; scalars or arrays.
 """
 
 from thermo.fluid import Fluid, fluid, fluids
+from thermo.cubic import custom_fluid
 
-__all__ = ["Fluid", "fluid", "fluids"]
+__all__ = ["Fluid", "custom_fluid", "fluid", "fluids"]

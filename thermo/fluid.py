@@ -15,9 +15,11 @@ from typing import NamedTuple
 import numpy as np
 
 from thermo.ancillary import ancillaries
+from thermo.classify import Classification, classify
 from thermo.density import DensitySolver
 from thermo.eos import HelmholtzEOS
 from thermo.saturation import SaturationCurve
+from thermo.solid import SolidCurves
 
 #: states per block of vectorized work: large enough to amortize numpy's per-call cost,
 #: small enough for the (states x terms) temporaries to stay in cache (DESIGN.md, section 5)
@@ -107,6 +109,8 @@ def _shaped(values: np.ndarray, shape: tuple):
 class Fluid:
     """One pure fluid and its reference equation of state (``source``)."""
 
+    approximate = False  #: reference-quality equations (custom cubic fluids say True)
+
     def __init__(self, data: dict):
         self.key: str = data["key"]
         self.name: str = data["name"]
@@ -149,6 +153,63 @@ class Fluid:
         liquid, vapor = self.saturation.densities(T.ravel())
         return (_shaped(np.asarray(liquid) * self.molar_mass, T.shape),
                 _shaped(np.asarray(vapor) * self.molar_mass, T.shape))
+
+    # ------------------------------------------------------------ solid phases (thermo.solid)
+    @functools.cached_property
+    def solid(self) -> SolidCurves:
+        """Melting and sublimation curves with sources and fallback flags, joined at the triple point."""
+        triple = (self.triple.T, float(self.saturation.p_min))  # where the saturation curve starts
+        return SolidCurves.from_data(self._data, triple=triple, vaporization_enthalpy=self._triple_vaporization_enthalpy)
+
+    def _triple_vaporization_enthalpy(self) -> float:
+        """h_vapor - h_liquid [J/mol] from the equation of state at the triple-point densities of the data file."""
+        triple = self._data["triple"]
+        rho = np.array([triple["rho_vapor"], triple["rho_liquid"]]) / self.molar_mass
+        h_vapor, h_liquid = self.eos.state(rho, self.triple.T).h
+        return float(h_vapor - h_liquid)
+
+    def melting_pressure(self, T):
+        """Melting pressure [Pa] at T [K]; NaN off the curve and on a vertical fallback. Where
+        several ices melt at one T (water), the lowest-pressure one. ``solid.melting`` holds the
+        source and ``published`` flag.
+
+        >>> round(float(fluid("water").melting_pressure(260.0)) / 1e6, 3)  # IAPWS R14-08 check value
+        138.268
+        """
+        return self.solid.melting.pressure(T)
+
+    def sublimation_pressure(self, T):
+        """Sublimation pressure [Pa] at T [K]; NaN off the curve (``solid.sublimation``: source, flag).
+
+        >>> round(float(fluid("water").sublimation_pressure(230.0)), 4)  # IAPWS R14-08: 8.94735 Pa
+        8.9473
+        """
+        return self.solid.sublimation.pressure(T)
+
+    def melting_temperature(self, p):
+        """Melting temperature [K] at p [Pa], single-valued across the ices of water; NaN off the curve.
+
+        >>> round(float(fluid("water").melting_temperature(268.685e6)), 3)  # IAPWS R14-08: ice III
+        254.0
+        """
+        return self.solid.melting.temperature(p)
+
+    def sublimation_temperature(self, p):
+        """Sublimation temperature [K] at p [Pa]; NaN off the curve.
+
+        >>> round(float(fluid("CO2").sublimation_temperature(101325.0)), 2)  # Span & Wagner (1996): 194.686 K
+        194.69
+        """
+        return self.solid.sublimation.temperature(p)
+
+    def classify(self, T, p, u_T=0.0, u_p=0.0) -> Classification:
+        """Phase labels and margins at T [K], p [Pa] with standard uncertainties u_T [K], u_p [Pa]
+        (``thermo.classify``).
+
+        >>> str(fluid("CO2").classify(194.0, 101325.0).phase)  # common practice: dry ice at 1 atm
+        'solid'
+        """
+        return classify(self, T, p, u_T, u_p)
 
     # ------------------------------------------------------------ single phase
     def _domain(self, T: np.ndarray, p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
