@@ -37,6 +37,13 @@ def wait_for(name: str, text: str, timeout: float = 20.0) -> str:
     raise AssertionError(f"{text!r} never appeared; the pane shows:\n{shown}")
 
 
+def wait_gone(name: str, text: str, timeout: float = 10.0) -> None:
+    deadline = time.monotonic() + timeout
+    while text in pane(name):
+        assert time.monotonic() < deadline, f"{text!r} is still shown"
+        time.sleep(0.2)
+
+
 def alive(name: str) -> bool:
     return subprocess.run(["tmux", "has-session", "-t", name], capture_output=True).returncode == 0
 
@@ -58,13 +65,17 @@ def test_demo_shows_the_state_answers_keys_and_asks_before_quitting(demo, tmp_pa
     assert "monitoring aid, not a safety system" in screen
     wait_for(demo, "S/s")
     tmux("send-keys", "-t", demo, "?")
-    help_screen = wait_for(demo, "keys")
+    help_screen = wait_for(demo, "─ keys ─")
     assert "acknowledge" in help_screen.lower() or "ack" in help_screen
     tmux("send-keys", "-t", demo, "Escape")
+    wait_gone(demo, "─ keys ─")
+    assert "p–T · whole range" in pane(demo)
     tmux("send-keys", "-t", demo, "d")
-    wait_for(demo, "p–v")
+    wait_for(demo, "p–v · whole range")
+    tmux("send-keys", "-t", demo, "z")
+    wait_for(demo, "p–v · near now")
     tmux("send-keys", "-t", demo, "q")
-    wait_for(demo, "Quit and close the log?")
+    wait_for(demo, "y quits")
     tmux("send-keys", "-t", demo, "y")
     deadline = time.monotonic() + 10
     while alive(demo) and time.monotonic() < deadline:

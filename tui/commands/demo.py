@@ -17,7 +17,7 @@ def add_parser(subparsers) -> None:
         epilog=SAFETY_NOTE,
     )
     parser.add_argument("--scenario", metavar="NAME", help="built-in scenario name or scenario TOML file "
-                        "(default: the built-in demo)")
+                        "(default: view-cell, CO2 filled and heated through its critical point)")
     parser.add_argument("--speed", type=float, default=1.0, metavar="X",
                         help="pace: 1 as written, 10 ten times faster, 0 as fast as possible (default 1)")
     parser.add_argument("--log-dir", metavar="DIR", help="where to record the run (default: a temporary folder)")

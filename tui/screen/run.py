@@ -9,6 +9,8 @@ from pathlib import Path
 from tui.screen.app import make_app
 from tui.screen.session import Session
 
+#: the built-in scenario `rigside demo` plays unless told otherwise (tui/acquire/scenarios/)
+DEMO_SCENARIO = "view-cell"
 #: where `rigside demo` records unless told otherwise (the demo's logs are throwaway)
 DEMO_LOG_DIR = Path(tempfile.gettempdir()) / "rigside-demo"
 #: how long closing waits for the pipeline thread to let go of the source [s]
@@ -41,8 +43,8 @@ def run_demo(scenario: str | None = None, *, speed: float = 1.0, log_dir: str | 
     from tui.monitor.config import load_config
     from tui.record import RunRecorder
 
-    source = open_source(f"virtual:{scenario or ''}", SourceOptions(speed=speed))
-    config = load_config(config_path, fluid=getattr(source, "fluid", None))
+    source = open_source(f"virtual:{scenario or DEMO_SCENARIO}", SourceOptions(speed=speed))
+    config = load_config(config_path, fluid=source.scenario.fluid)
     recorder = RunRecorder(Path(log_dir) if log_dir else DEMO_LOG_DIR,
                            {"source": source.description, "config": config.to_json()})
-    return run_watch(source, config, recorder=recorder, label=f"demo: {source.description}")
+    return run_watch(source, config, recorder=recorder, label=f"demo {scenario or DEMO_SCENARIO}: {source.description}")

@@ -53,6 +53,8 @@ class LiveReadout(TextPanel):
 
 
 def _health(view: LiveView) -> tuple[str, str]:
+    """The source's state; its message too when something is wrong (the status line names the source)."""
     state = view.source_state
-    text = f"source {state}" + (f": {view.source_message}" if view.source_message else "")
-    return (text.upper(), ABNORMAL) if state in UNHEALTHY_STATES else (text, "")
+    if state not in UNHEALTHY_STATES:
+        return f"source {state}", ""
+    return f"SOURCE {state.upper()}" + (f": {view.source_message}" if view.source_message else ""), ABNORMAL

@@ -15,10 +15,10 @@ from tui.screen.widgets.text_panel import TextPanel
 FULL_SCALE_LIMITS = 4.0
 #: full scale when no limit is configured, in the margin's SI unit
 DEFAULT_FULL_SCALE = {"dT_saturation_K": 20.0, "dp_saturation_Pa": 10e5, "dT_solid_K": 20.0, "critical_distance": 0.5}
-LABEL_WIDTH = 11
+LABEL_WIDTH = 12
 VALUE_WIDTH = 8
 #: cells kept for the trend and the time to the boundary, so the bars do not jump
-TAIL_WIDTH = 10
+TAIL_WIDTH = 9
 _EIGHTHS = " ▏▎▍▌▋▊▉"
 ABNORMAL = "bold reverse"
 

@@ -1,4 +1,4 @@
-"""One line of run status: source, sample rate, dropped and malformed counts, recording, replay."""
+"""The run's status: fluid, sample rate, dropped and malformed counts, recording, replay, then the source."""
 
 from __future__ import annotations
 
@@ -15,7 +15,7 @@ from tui.screen.widgets.text_panel import TextPanel
 def status_parts(view: LiveView) -> list[tuple[str, str]]:
     """The status as (text, style) pieces; losses are emphasised, never only coloured."""
     rate = f"{view.rate_hz:.0f} S/s" if math.isfinite(view.rate_hz) else "— S/s"
-    parts = [(view.source or "no source", "bold"), (f" · {rate} · {view.samples} samples", "")]
+    parts = [(view.fluid, "bold"), (f" · {rate} · {view.samples} samples", "")]
     for count, word in ((view.dropped, "dropped"), (view.malformed, "malformed")):
         parts.append((f" · {word} {count}", "bold reverse" if count else ""))
     if view.recording is not None:
@@ -25,7 +25,8 @@ def status_parts(view: LiveView) -> list[tuple[str, str]]:
     if view.replay is not None:
         replay = view.replay
         state = "paused ⏸" if replay.paused else "playing ▶"
-        parts.append((f" · replay {clock(replay.position_s)}/{clock(replay.duration_s)} ×{replay.speed:g} {state}", ""))
+        parts.append((f" · {clock(replay.position_s)}/{clock(replay.duration_s)} ×{replay.speed:g} {state}", ""))
+    parts.append((f" · {view.source}", "dim"))
     return parts
 
 
