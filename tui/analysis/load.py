@@ -21,7 +21,7 @@ from tui.analysis.summary import alarm_periods
 from tui.errors import UsageError
 from tui.monitor.batch import run_batch
 from tui.monitor.conditions import MARGIN_KINDS
-from tui.monitor.config import MonitorConfig, load_config
+from tui.monitor.config import MonitorConfig, config_from_tree, load_config
 from tui.monitor.model import MARGINS, Event
 from tui.record.recorder import run_parts
 from tui.record.table import Table, read_table
@@ -106,7 +106,7 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     result = run_batch(table["t_s"], table["pressure_Pa"], table["temperature_K"], quality, config, t_wall=table["t_wall"])
     others = {}
     for path in args.compare_config:
-        other = load_config(path, fluid=fluid_name)
+        other = load_config(path, fluid=fluid_name)  # the same fluid: only the limits differ
         progress.stage(f"replaying {log.name} under {Path(path).name}")
         others[Path(path).name] = run_batch(table["t_s"], table["pressure_Pa"], table["temperature_K"], quality, other).events
     run = AnalysedRun(
@@ -149,11 +149,23 @@ def recorded_fluid(table: Table) -> str | None:
 
 
 def choose_config(args: argparse.Namespace, table: Table, log: Path) -> MonitorConfig:
-    """--config (or the defaults) for the fluid of --fluid, else of the log, else of the file."""
-    fluid = args.fluid or recorded_fluid(table)
-    config = load_config(args.config, fluid=fluid)
-    if fluid is None and not (args.config and _sets_fluid(args.config)):
+    """--config, else the configuration the log recorded, else the defaults; for the fluid of
+    --fluid, else of the log, else of the configuration file. A plain CSV must say its fluid
+    somehow, and a configuration for another fluid than the log's is refused."""
+    recorded = recorded_fluid(table)
+    if args.config:
+        config = load_config(args.config, fluid=args.fluid, fallback_fluid=recorded)
+        named = bool(args.fluid or recorded or _sets_fluid(args.config))
+    elif isinstance(table.metadata.get("config"), dict):
+        config = config_from_tree(table.metadata["config"], f"recorded in {log.name}", fluid=args.fluid)
+        named = True
+    else:
+        config = load_config(None, fluid=args.fluid or recorded)
+        named = bool(args.fluid or recorded)
+    if not named:
         raise UsageError(f"{log}: the log does not say which fluid it holds; give --fluid (see `rigside fluids`)")
+    if args.fluid is None and recorded and thermo.fluid(config.fluid).name != thermo.fluid(recorded).name:
+        raise UsageError(f"configuration {args.config} is for {config.fluid} but {log} holds {recorded}; give --fluid to choose")
     return config
 
 

@@ -99,7 +99,7 @@ class RunSummary:
 
     @property
     def gap_s(self) -> float:
-        return sum(gap.duration_s for gap in self.gaps)
+        return float(sum(gap.duration_s for gap in self.gaps))
 
 
 def summarise(
