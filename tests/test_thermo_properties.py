@@ -168,6 +168,12 @@ def test_branch_follows_the_saturation_pressure(key):
     above, below = f.density(T, p_sat * (1 + 1e-7)), f.density(T, p_sat * (1 - 1e-7))
     assert np.all(above >= rho_liquid * (1 - 1e-9)) and np.all(above < rho_liquid * 1.01)
     assert np.all(below <= rho_vapor * (1 + 1e-9)) and np.all(below > rho_vapor * 0.99)
+    # and next to the critical point, where both branches are nearly flat
+    T = f.critical.T * (1 - np.array([1e-3, 1e-4, 1e-5]))
+    rho_liquid, rho_vapor = f.saturated_densities(T)
+    p_sat = f.saturation_pressure(T)
+    assert np.all(f.density(T, p_sat * (1 + 1e-6)) >= rho_liquid)
+    assert np.all(f.density(T, p_sat * (1 - 1e-6)) <= rho_vapor)
 
 
 def test_cold_vapor_below_the_triple_point_is_extrapolated():
@@ -182,6 +188,22 @@ def test_cold_vapor_below_the_triple_point_is_extrapolated():
     state.update(CP.DmassT_INPUTS, props["density"][0], 203.15)
     assert state.p() == pytest.approx(101325.0, rel=1e-9)
     assert 0.97 < props["Z"][0] < 1.0
+
+
+def test_liquid_water_beside_ice_below_the_triple_point():
+    """Under pressure water stays liquid below 273.16 K down to the ice Ih melting curve (IAPWS
+    R14-08); CoolProp (reference library) gives the same density there."""
+    props = fluid("H2O").properties(np.array([260.0, 260.0]), np.array([200e6, 100e6]))
+    assert props["density"][0] == pytest.approx(CP.PropsSI("D", "T", 260.0, "P", 200e6, "Water"), rel=1e-10)
+    assert props["extrapolated"].tolist() == [True, False]
+    assert np.isnan(props["density"][1])  # ice Ih: it melts at about 140 MPa at 260 K
+
+
+def test_solid_states_give_nan():
+    """CO2 freezes above its melting curve (Span & Wagner 1996): 250 K at 1 GPa is solid."""
+    f = fluid("CO2")
+    assert np.isnan(f.density(250.0, 1e9))
+    assert f.density(250.0, f.melting_pressure(250.0) * 0.99) > 1000.0
 
 
 def test_out_of_range_and_nan_give_nan_not_errors():

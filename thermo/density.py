@@ -74,8 +74,8 @@ class DensitySolver:
         """Density [mol/m3] at 1-D arrays T [K], p [Pa].
 
         p_sat [Pa], rho_liquid and rho_vapor [mol/m3] describe the saturation curve at T (NaN at
-        T >= T_c; p_sat = inf marks vapor below the triple point): the liquid root is sought where
-        p > p_sat, the vapor root where p <= p_sat, the single fluid root at and above T_c.
+        T >= T_c): the liquid root is sought where p > p_sat, the vapor root where p <= p_sat,
+        the single fluid root at and above T_c.
         ``prepared``: the residual's ``prepare(T_r/T)``, where the caller keeps it for the properties.
         """
         eos = self.eos

@@ -14,7 +14,6 @@ from typing import NamedTuple
 
 import numpy as np
 
-from thermo.ancillary import ancillaries
 from thermo.classify import Classification, classify
 from thermo.density import DensitySolver
 from thermo.eos import HelmholtzEOS
@@ -138,17 +137,31 @@ class Fluid:
 
     # ------------------------------------------------------------ saturation
     def saturation_pressure(self, T):
-        """Vapor pressure p_sat(T) [Pa] for T_triple <= T [K] <= T_c; NaN elsewhere."""
+        """Vapor pressure p_sat(T) [Pa] for T_triple <= T [K] <= T_c; NaN elsewhere.
+
+        >>> round(float(fluid("H2O").saturation_pressure(450.0)), 1)  # IAPWS-95 Table 8 (from memory)
+        932203.6
+        """
         T = np.asarray(T, dtype=float)
         return _shaped(np.asarray(self.saturation.pressure(T.ravel())), T.shape)
 
     def saturation_temperature(self, p):
-        """Saturation temperature T_sat(p) [K] for p_triple <= p [Pa] <= p_c; NaN elsewhere."""
+        """Saturation temperature T_sat(p) [K] for p_triple <= p [Pa] <= p_c; NaN elsewhere.
+
+        >>> round(float(fluid("H2O").saturation_temperature(0.932203564e6)), 6)  # IAPWS-95 Table 8 (from memory)
+        450.0
+        """
         p = np.asarray(p, dtype=float)
         return _shaped(np.asarray(self.saturation.temperature(p.ravel())), p.shape)
 
     def saturated_densities(self, T):
-        """(rho_liquid, rho_vapor) [kg/m3] on the saturation curve at T [K]; NaN outside it."""
+        """(rho_liquid, rho_vapor) [kg/m3] on the saturation curve at T [K]; NaN outside it.
+
+        >>> [round(float(rho), 5) for rho in fluid("H2O").saturated_densities(450.0)]
+        [890.34125, 4.812]
+
+        (IAPWS-95 release, Table 8, from memory.)
+        """
         T = np.asarray(T, dtype=float)
         liquid, vapor = self.saturation.densities(T.ravel())
         return (_shaped(np.asarray(liquid) * self.molar_mass, T.shape),
@@ -213,34 +226,35 @@ class Fluid:
 
     # ------------------------------------------------------------ single phase
     def _domain(self, T: np.ndarray, p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """(inside, extrapolated): states in the equation's range, and vapor states below the
-        triple point (under the sublimation curve) evaluated on the extrapolated vapor branch."""
-        in_p = (p > 0) & (p <= self.range.p_max)
-        inside = in_p & (T >= self.range.T_min) & (T <= self.range.T_max)
-        cold = in_p & (T < self.range.T_min) & (T >= 0.5 * self.triple.T)
-        with np.errstate(invalid="ignore"):  # until the sublimation curves land: the vapor-pressure ancillary
-            cold &= p < ancillaries(self._data)["vapor_pressure"](np.where(cold, T, self.triple.T))
-        return inside, cold
+        """(fluid, extrapolated): states in the equation's pressure and temperature range that are
+        not solid (warmer than T_solid(p), down to the lowest temperature of the solid curves), and
+        those of them colder than the range's T_min, where the equation is extrapolated (vapor under
+        the sublimation curve; liquid water under pressure beside ice Ih)."""
+        inside = (p > 0) & (p <= self.range.p_max) & (T <= self.range.T_max) & (T >= self.solid.T_min)
+        with np.errstate(invalid="ignore"):
+            inside &= ~(T < self.solid.solid_temperature(p)) & ~(p > self.solid.p_top)
+        return inside, inside & (T < self.range.T_min)
 
     def _solve_chunk(self, T: np.ndarray, p: np.ndarray, prepared=None) -> np.ndarray:
-        """Density [mol/m3] of one chunk of 1-D states in the domain (``prepared``: tau factors)."""
-        p_sat = np.where(T < self.critical.T, self.saturation.pressure(np.maximum(T, self.triple.T)), np.nan)
-        p_sat = np.where(T < self.triple.T, np.inf, p_sat)  # cold states are vapor by construction
-        rho_liquid, rho_vapor = self.saturation.densities(np.clip(T, self.triple.T, self.critical.T))
+        """Density [mol/m3] of one chunk of 1-D fluid states (``prepared``: tau factors, if kept).
+
+        Below T_triple the curve's end stands in: liquid above the triple-point pressure, vapor under it."""
+        on_curve = np.clip(T, self.triple.T, self.critical.T)
+        p_sat = np.where(T < self.critical.T, self.saturation.pressure(on_curve), np.nan)
+        rho_liquid, rho_vapor = self.saturation.densities(on_curve)
         return self._solver.solve(T, p, p_sat, rho_liquid, rho_vapor, prepared)
 
     def density(self, T, p):
         """Density [kg/m3] of the single-phase state at T [K], p [Pa].
 
-        The liquid root where p > p_sat(T) below T_c, the vapor root otherwise; NaN outside the
-        equation's range, where no stable root was found, and for NaN input.
+        The liquid root where p > p_sat(T) below T_c, the vapor root otherwise; NaN for solid
+        states, outside the equation's range, where no stable root was found, and for NaN input.
 
         >>> round(float(fluid("H2O").density(300.0, 0.992418352e5)), 3)  # IAPWS-95 Table 7 (from memory)
         996.556
         """
         T, p, shape = _as_arrays(T, p)
-        inside, cold = self._domain(T, p)
-        use = np.flatnonzero(inside | cold)
+        use = np.flatnonzero(self._domain(T, p)[0])
         rho = np.full(T.size, np.nan)
         for start in range(0, use.size, CHUNK):
             idx = use[start:start + CHUNK]
@@ -252,12 +266,16 @@ class Fluid:
 
         Keys: density [kg/m3], molar_volume [m3/mol], Z [-], alpha_p [1/K], kappa_T [1/Pa],
         cp, cv [J/(kg K)], speed_of_sound [m/s], enthalpy [J/kg], entropy [J/(kg K)] and
-        extrapolated [bool] (vapor below the triple point, outside the stated range). NaN where
-        ``density`` is NaN. Formulas: ``thermo.eos.HelmholtzEOS.state``.
+        extrapolated [bool] (fluid colder than the stated range's T_min). NaN where ``density``
+        is NaN. Formulas: ``thermo.eos.HelmholtzEOS.state``.
+
+        >>> water = fluid("water").properties(300.0, 0.992418352e5)  # IAPWS-95 Table 7 (from memory)
+        >>> round(float(water["cv"]), 2), round(float(water["speed_of_sound"]), 4)
+        (4130.18, 1501.5191)
         """
         T, p, shape = _as_arrays(T, p)
-        inside, cold = self._domain(T, p)
-        use = np.flatnonzero(inside | cold)
+        inside, extrapolated = self._domain(T, p)
+        use = np.flatnonzero(inside)
         out = {k: np.full(T.size, np.nan) for k in PROPERTY_NAMES}
         for start in range(0, use.size, CHUNK):
             idx = use[start:start + CHUNK]
@@ -272,5 +290,5 @@ class Fluid:
                                ("speed_of_sound", s.w), ("enthalpy", s.h / M), ("entropy", s.s / M)):
                 out[key][idx] = value
         result = {k: _shaped(v, shape) for k, v in out.items()}
-        result["extrapolated"] = _shaped(cold & np.isfinite(out["density"]), shape)
+        result["extrapolated"] = _shaped(extrapolated & np.isfinite(out["density"]), shape)
         return result

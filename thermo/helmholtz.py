@@ -178,19 +178,13 @@ class _BellTerms:
 
     fields: tuple[str, ...] = ()
     kind = ""
+    eta_sign = 1.0  #: the delta factor is exp(-eta_sign eta (delta-eps)^2)
 
     def __init__(self, block: dict):
         c = _arrays(block, self.fields, self.kind)
         self.d = _integer(c["d"], "d", self.kind).astype(float)
-        self.eta, self.epsilon = self._delta_eta(c["eta"]), c["epsilon"]
+        self.eta, self.epsilon = self.eta_sign * c["eta"], c["epsilon"]
         self.coefficients = {k: _column(v) for k, v in c.items()}
-
-    @staticmethod
-    def _delta_eta(eta: np.ndarray) -> np.ndarray:
-        return eta
-
-    def _tau_factor(self, tau: np.ndarray):  # pragma: no cover - each family defines it
-        raise NotImplementedError
 
     def prepare(self, tau: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         factor, h, h2 = self._tau_factor(tau)
@@ -226,16 +220,12 @@ class GaussianTerms(_BellTerms):
 class GaoBTerms(_BellTerms):
     """n delta^d tau^t exp(eta (delta-epsilon)^2 + 1/(beta (tau-gamma)^2 + b)); Gao et al. (2023).
 
-    The stored eta is negative (the bell opens downwards), so the delta factor is the Gaussian
-    one with -eta.
+    The delta factor is the Gaussian one with eta -> -eta (the stored eta is negative).
     """
 
     fields = ("n", "d", "t", "eta", "epsilon", "beta", "gamma", "b")
     kind = "gao_b"
-
-    @staticmethod
-    def _delta_eta(eta: np.ndarray) -> np.ndarray:
-        return -eta
+    eta_sign = -1.0
 
     def _tau_factor(self, tau: np.ndarray):
         c = self.coefficients
@@ -369,7 +359,8 @@ class ResidualHelmholtz:
 
         >>> import json, importlib.resources as ir
         >>> blocks = json.loads(ir.files("thermo").joinpath("data/H2O.json").read_text())["eos"]["residual"]
-        >>> round(float(ResidualHelmholtz(blocks).derivatives(838.025 / 322, 647.096 / 500).alphar), 8)
+        >>> r = ResidualHelmholtz(blocks).derivatives(838.025 / 322, 647.096 / 500)  # T = 500 K, rho = 838.025 kg/m3
+        >>> round(float(r.alphar), 8)  # IAPWS-95 release, Table 6 (from memory)
         -3.42693206
         """
         delta, tau = np.broadcast_arrays(np.asarray(delta, dtype=float), np.asarray(tau, dtype=float))
