@@ -9,6 +9,14 @@ Both block until the person quits and return the exit status.
 
 from __future__ import annotations
 
-from tui.screen.run import run_demo, run_watch
-
 __all__ = ["run_demo", "run_watch"]
+
+
+def __getattr__(name: str):
+    """Import the screen (and Textual) only when it is asked for, so that the pure-numpy
+    modules here (`tui.screen.curves`, used by analysis figures) load without Textual."""
+    if name in __all__:
+        from tui.screen import run
+
+        return getattr(run, name)
+    raise AttributeError(f"module 'tui.screen' has no attribute {name!r}")
