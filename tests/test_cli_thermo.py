@@ -304,22 +304,43 @@ def test_bad_curve_input_is_one_line_and_exit_2(capsys, argv, problem):
 
 
 # ------------------------------------------------------------------ as a process
-def readme_example() -> list[str]:
-    """The arguments of the README's first set-up command, after `.venv/bin/rigside`."""
+def readme_commands() -> list[list[str]]:
+    """The arguments of every `rigside` command in the README's shell blocks, in order."""
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
-    command = re.search(r"```sh\n(.*?)\n```", readme, re.DOTALL).group(1)
-    return shlex.split(command.split(".venv/bin/rigside", 1)[1])
+    commands = []
+    for block in re.findall(r"```sh\n(.*?)```", readme, re.DOTALL):
+        for line in block.splitlines():
+            command = line.split("&&")[-1].strip()
+            if re.match(r"(\.venv/bin/)?rigside ", command):
+                commands.append(shlex.split(command)[1:])
+    return commands
 
 
-def test_readme_example_runs_as_a_process():
-    argv = readme_example()
-    assert argv[0] in ("state", "demo")
-    if argv[0] == "demo":
-        pytest.skip("the README's main example is the interactive demo; the screen tests run it")
+def test_readme_set_up_command_names_a_rigside_command():
+    first = readme_commands()[0]
+    done = subprocess.run([str(RIGSIDE), first[0], "--help"], capture_output=True, text=True, timeout=120, cwd=ROOT)
+    assert done.returncode == 0, done.stderr
+
+
+def test_readme_state_example_runs_as_a_process():
+    argv = next(command for command in readme_commands() if command[0] == "state")
+    assert argv[:6] == ["state", "CO2", "-p", "58 bar(g)", "-t", "19 degC"]
     done = subprocess.run([str(RIGSIDE), *argv], capture_output=True, text=True, timeout=120, cwd=ROOT)
     assert done.returncode == 0, done.stderr
     assert done.stdout.startswith("carbon dioxide (CO2): liquid")
     assert "subcooling" in done.stdout
+
+
+def test_every_readme_example_of_these_commands_runs(capsys, tmp_path, monkeypatch):
+    readme = (ROOT / "README.md").read_text(encoding="utf-8")
+    (tmp_path / "butane.toml").write_text(re.search(r"```toml\n(.*?)```", readme, re.DOTALL).group(1))
+    monkeypatch.chdir(tmp_path)
+    examples = [argv for argv in readme_commands() if argv[0] in ("fluids", "state", "curve")]
+    assert len(examples) >= 8
+    for argv in examples:
+        argv = argv[: argv.index(">")] if ">" in argv else argv
+        code, out, err = rigside(capsys, *argv)
+        assert code == 0 and out and not err, (argv, err)
 
 
 def test_bad_input_as_a_process_is_one_line_on_stderr_and_exit_2():
