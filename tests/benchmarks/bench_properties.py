@@ -36,8 +36,9 @@ def random_states(f, rng, count):
     T = rng.uniform(f.range.T_min, min(f.range.T_max, 2 * f.critical.T), count)
     p = np.exp(rng.uniform(np.log(f.triple.p), np.log(min(f.range.p_max, 100e6)), count))
     with np.errstate(invalid="ignore"):
-        away = ~(np.abs(p / f.saturation_pressure(T) - 1) < 1e-3)
-    return T[away], p[away]
+        away = ~(np.abs(p / f.saturation_pressure(T) - 1) < 1e-3)  # off the saturation curve
+        fluid_phase = ~(T < f.solid.solid_temperature(p))  # not solid
+    return T[away & fluid_phase], p[away & fluid_phase]
 
 
 def cpu_seconds(call, *args, repeats=3):
