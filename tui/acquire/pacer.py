@@ -125,3 +125,35 @@ class Pacer:
             if self._paused or self._speed == math.inf:
                 return self.position
             return self._origin_play + (time.monotonic() - self._origin_real) * self._speed
+
+
+class Playback:
+    """The controls of a source that plays at its own pace (replay, virtual gauge), for any thread."""
+
+    pacer: Pacer
+
+    @property
+    def position(self) -> float:
+        """Playback time of the last sample handed out [s]."""
+        return self.pacer.position
+
+    @property
+    def paused(self) -> bool:
+        return self.pacer.paused
+
+    def pause(self) -> None:
+        self.pacer.pause()
+
+    def resume(self) -> None:
+        self.pacer.resume()
+
+    def set_speed(self, speed: float) -> None:
+        """1 = recorded pace, 10 = ten times faster, 0 = as fast as possible."""
+        self.pacer.set_speed(speed)
+
+    def step(self) -> None:
+        """While paused: hand out one more sample."""
+        self.pacer.step()
+
+    def seek(self, t_s: float) -> None:
+        self.pacer.seek(t_s)

@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from tui.acquire.options import SourceOptions
-from tui.acquire.pacer import Pacer
+from tui.acquire.pacer import Pacer, Playback
 from tui.acquire.sample import Quality, Sample, SourceStatus
 from tui.acquire.source import Counters, Item, Source
 from tui.record.table import read_table
@@ -24,7 +24,7 @@ from tui.record.table import read_table
 BATCH = 4096
 
 
-class ReplaySource(Source):
+class ReplaySource(Playback, Source):
     """Plays the rows of a table; `linger` keeps it open at the end for a seek back."""
 
     def __init__(self, path: Path, options: SourceOptions = SourceOptions(), *, linger: bool = False):
@@ -50,36 +50,10 @@ class ReplaySource(Source):
         self._wall = self._wall_clock()
         self._qualities, self._reasons, self._raw = self._recorded()
 
-    # -- controls (any thread) --------------------------------------------------------------------
-
     @property
     def duration(self) -> float:
         t = self.table["t_s"]
         return float(t[-1] - t[0]) if len(t) else 0.0
-
-    @property
-    def position(self) -> float:
-        """Log time of the last sample handed out [s]."""
-        return self.pacer.position
-
-    @property
-    def paused(self) -> bool:
-        return self.pacer.paused
-
-    def pause(self) -> None:
-        self.pacer.pause()
-
-    def resume(self) -> None:
-        self.pacer.resume()
-
-    def set_speed(self, speed: float) -> None:
-        self.pacer.set_speed(speed)
-
-    def step(self) -> None:
-        self.pacer.step()
-
-    def seek(self, t_s: float) -> None:
-        self.pacer.seek(t_s)
 
     # -- playing -----------------------------------------------------------------------------------
 

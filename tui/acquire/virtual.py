@@ -14,7 +14,7 @@ from collections.abc import Iterator
 
 from tui.acquire.lines import LineSplitter
 from tui.acquire.options import SourceOptions
-from tui.acquire.pacer import Pacer
+from tui.acquire.pacer import Pacer, Playback
 from tui.acquire.parse import make_parser
 from tui.acquire.profile import GENERIC, load_profile
 from tui.acquire.sample import SourceStatus
@@ -26,7 +26,7 @@ from tui.acquire.voice import Voice
 BATCH = 1024
 
 
-class VirtualGauge(Source):
+class VirtualGauge(Playback, Source):
     """Plays a scenario; controls as for replays: pause, resume, set_speed, step, seek."""
 
     def __init__(self, scenario: Scenario, options: SourceOptions = SourceOptions()):
@@ -45,31 +45,8 @@ class VirtualGauge(Source):
         return cls(load_scenario(name_or_path), options)
 
     @property
-    def position(self) -> float:
-        return self.pacer.position
-
-    @property
     def duration(self) -> float:
         return math.inf if self.scenario.loop else self.scenario.duration
-
-    @property
-    def paused(self) -> bool:
-        return self.pacer.paused
-
-    def pause(self) -> None:
-        self.pacer.pause()
-
-    def resume(self) -> None:
-        self.pacer.resume()
-
-    def set_speed(self, speed: float) -> None:
-        self.pacer.set_speed(speed)
-
-    def step(self) -> None:
-        self.pacer.step()
-
-    def seek(self, t_s: float) -> None:
-        self.pacer.seek(t_s)
 
     def batches(self, stop: threading.Event) -> Iterator[list[Item]]:
         rate, total = self.scenario.rate_hz, self.scenario.samples

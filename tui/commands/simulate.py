@@ -29,6 +29,8 @@ def add_parser(subparsers) -> None:
     where.add_argument("--pty", action="store_true", help="speak on a new pseudo-terminal (the default)")
     where.add_argument("--tcp", type=int, metavar="PORT", help="listen on 127.0.0.1:PORT (0: any free port)")
     parser.add_argument("--profile", metavar="FILE", help="speak this gauge profile's protocol (its emit template, poll or Modbus registers)")
+    parser.add_argument("--device", choices=("pressure", "temperature"),
+                        help="with a two-device profile: which of its devices to play")
     parser.add_argument("--speed", type=float, default=1.0, metavar="X", help="playback speed (default 1; 0: as fast as the reader takes it)")
     parser.add_argument("--loop", action="store_true", help="start again at the end, for ever")
 
@@ -40,6 +42,10 @@ def run(args) -> int:
     if args.speed < 0:
         raise UsageError(f"--speed must be 0 (as fast as possible) or positive, got {args.speed:g}")
     profile = load_profile(args.profile) if args.profile else None
+    if profile is not None and profile.devices:
+        if args.device is None:
+            raise UsageError(f"profile {profile.origin} has two devices: choose one with --device pressure|temperature")
+        profile = profile.devices[args.device]
     stop = threading.Event()
     if profile is not None and profile.modbus is not None:
         return _serve_modbus(scenario, profile, args, stop)

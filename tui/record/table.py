@@ -19,6 +19,7 @@ import csv
 import json
 import math
 import re
+import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from datetime import UTC, datetime
@@ -286,7 +287,9 @@ def _iso_seconds(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """ISO 8601 texts -> seconds since the epoch, and which ones could be read."""
     stripped = np.char.strip(values)
     try:
-        stamps = np.char.rstrip(stripped, "Z").astype("datetime64[us]")
+        with warnings.catch_warnings():  # numpy converts +hh:mm offsets to UTC, with a warning
+            warnings.simplefilter("ignore")
+            stamps = np.char.rstrip(stripped, "Z").astype("datetime64[us]")
         return stamps.astype(np.int64) * 1e-6, np.ones(len(values), dtype=bool)
     except ValueError:
         pass
@@ -327,16 +330,17 @@ def _columns(rows, usecols, dtype, delimiter, good, numbers, names, bad) -> np.n
 
     def load(a: int, b: int) -> None:
         try:
-            block = np.loadtxt(rows[a:b], delimiter=delimiter, quotechar='"', usecols=usecols, dtype=dtype, ndmin=2, comments=None)
+            with warnings.catch_warnings():  # a block of blank lines "contains no data"
+                warnings.simplefilter("ignore", UserWarning)
+                block = np.loadtxt(rows[a:b], delimiter=delimiter, quotechar='"', usecols=usecols, dtype=dtype, ndmin=2, comments=None)
             if len(block) == b - a:
                 pieces.append(block)
                 return
-            failure = None
-        except ValueError as exc:
-            failure = exc
+        except ValueError:
+            pass
         if b - a == 1:
             good[a] = False
-            if failure is not None or rows[a].strip():
+            if rows[a].strip():  # a blank line is no row, not a bad one
                 bad.append((int(numbers[a]), _explain(rows[a], usecols, names, delimiter, dtype)))
             return
         middle = (a + b) // 2
