@@ -78,8 +78,6 @@ def run(args: argparse.Namespace) -> int:
         raise UsageError("--interval and --hook-timeout must be positive numbers of seconds")
     headless = args.headless or args.jsonl
     hook_argv = split_command(args.on_alarm) if args.on_alarm else None
-    if headless:
-        print(SAFETY_NOTE, file=sys.stderr)
     options = SourceOptions.from_args(args)
     source = open_source(args.source, options)
     try:
@@ -90,6 +88,7 @@ def run(args: argparse.Namespace) -> int:
         raise
     if not headless:
         return _screen(source, config, recorder)
+    print(SAFETY_NOTE, file=sys.stderr)
     print(f"rigside watch: {config.fluid} from {source.description}; configuration: {config.origin}; "
           f"recording to {recorder.path}", file=sys.stderr)
     return _headless(args, source, options, config, recorder, hook_argv)
