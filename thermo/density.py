@@ -1,15 +1,16 @@
 """Density of a single-phase state rho(T, p) from a Helmholtz equation of state.
 
 Newton on delta for the reduced pressure delta (1 + delta alphar_delta) = p/(rho_r R T), with
-the tau-only factors computed once per state. Starting values put every state on the side of
-its root from which Newton converges monotonically (Span 2000, Sec. 3.4; Lemmon et al. 2018,
-REFPROP documentation, from memory):
+the tau-only factors computed once per state. The start is the Peng-Robinson root (Peng &
+Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59, doi:10.1021/i160057a011), and below T_c it is
+scaled by the ratio of the reference equation's saturated density to the cubic's on the same
+side of the curve, then kept on that side of it:
 
-- vapor below T_c: the ideal gas, left of the root on the concave vapor branch;
-- liquid below T_c: the saturated liquid density, after which the convex liquid branch keeps
-  the iterates right of the root;
-- T >= T_c: the Peng-Robinson root (Peng & Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59,
-  doi:10.1021/i160057a011), with a bracket that falls back to bisection where Newton strays.
+- vapor: not denser than the saturated vapor; the vapor branch is concave, so Newton from the
+  left of the root climbs to it without crossing into the metastable region;
+- liquid: not lighter than the saturated liquid; the liquid branch is convex, so after at most
+  one step past the root the iterates come down to it from the right;
+- T >= T_c: the single root, with a bracket that falls back to bisection where Newton strays.
 
 A root counts only if it converged, is mechanically stable (dp/drho > 0) and lies on the
 requested side of the critical density; elsewhere the result is NaN.
