@@ -64,6 +64,9 @@ def main(argv: list[str] | None = None) -> int:
     except (UsageError, UnitError, ValueError) as exc:
         print(f"rigside {args.command}: {exc}", file=sys.stderr)
         return 2
+    except BrokenPipeError:  # the reader went away (`rigside fluids | head`): nothing left to say
+        sys.stderr.close()
+        return 0
     except (RuntimeFailure, OSError) as exc:
         print(f"rigside {args.command}: {exc}", file=sys.stderr)
         return 1
