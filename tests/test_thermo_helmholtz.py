@@ -21,7 +21,7 @@ TAU = RNG.uniform(0.4, 2.5, 12)
 
 # ------------------------------------------------ naive transcriptions of the published forms
 def naive_power(b, delta, tau):
-    """Span (2000), Eq. 3.49: n delta^d tau^t exp(-delta^l)."""
+    """Span (2000): n delta^d tau^t exp(-delta^l)."""
     total = 0.0
     for n, d, t, l in zip(b["n"], b["d"], b["t"], b["l"]):
         term = n * delta**d * tau**t
@@ -50,7 +50,7 @@ def naive_nonanalytic(b, delta, tau):
 
 
 def naive_gao_b(b, delta, tau):
-    """Gao et al. (2023), Eq. 4: n delta^d tau^t exp(eta (delta-eps)^2 + 1/(beta (tau-gamma)^2 + b))."""
+    """Gao et al. (2023): n delta^d tau^t exp(eta (delta-eps)^2 + 1/(beta (tau-gamma)^2 + b))."""
     return sum(n * delta**d * tau**t * math.exp(eta * (delta - eps) ** 2 + 1 / (beta * (tau - gamma) ** 2 + bb))
                for n, d, t, eta, eps, beta, gamma, bb in
                zip(b["n"], b["d"], b["t"], b["eta"], b["epsilon"], b["beta"], b["gamma"], b["b"]))
@@ -60,7 +60,7 @@ NAIVE = {"power": naive_power, "gaussian": naive_gaussian, "nonanalytic": naive_
 
 
 def naive_ideal(blocks, delta, tau):
-    """Span (2000), Table 3.1: ln delta + a1 + a2 tau + a ln tau + sum n tau^t + sum n ln(1 - e^(-t tau))."""
+    """Span (2000): ln delta + a1 + a2 tau + a ln tau + sum n tau^t + sum n ln(1 - e^(-t tau))."""
     total = math.log(delta)
     for b in blocks:
         if b["type"] in ("lead", "offset"):

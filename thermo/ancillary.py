@@ -2,7 +2,8 @@
 
 They are fits to each reference equation of state (the ``ancillaries`` block of a fluid file,
 with its maximum error), good for starting values and a first phase guess, never for results.
-Forms, with theta = 1 - T/T_r [-] (Wagner & Pruss 2002, Eqs. 2.5-2.7, doi:10.1063/1.1461829):
+Forms, with theta = 1 - T/T_r [-] (after the auxiliary equations of Wagner & Pruss 2002,
+doi:10.1063/1.1461829):
 
 - exponential:      y = y_r exp(sum n_i theta^t_i), times T_r/T inside exp when ``using_tau_r``
 - not exponential:  y = y_r (1 + sum n_i theta^t_i)

@@ -2,7 +2,7 @@
 
 a(rho, T)/(RT) = alpha0(delta, tau) + alphar(delta, tau), delta = rho/rho_r, tau = T_r/T. Every
 thermodynamic property at given (rho, T) is a combination of the scaled derivatives of alpha0
-and alphar: Span, R. Multiparameter Equations of State, Springer (2000), Table 3.3,
+and alphar: Span, R. Multiparameter Equations of State, Springer (2000),
 doi:10.1007/978-3-662-04092-8; Wagner & Pruss, J. Phys. Chem. Ref. Data 31 (2002) 387, Table 6.3,
 doi:10.1063/1.1461829. Molar units inside ([mol/m3], [J/mol]); ``thermo.fluid`` converts to mass.
 """
@@ -61,7 +61,7 @@ class HelmholtzEOS:
         return self.residual.derivatives(delta, tau)
 
     def pressure(self, rho, T) -> np.ndarray:
-        """p = rho R T (1 + delta alphar_delta) [Pa] at rho [mol/m3], T [K] (Span 2000, Table 3.3).
+        """p = rho R T (1 + delta alphar_delta) [Pa] at rho [mol/m3], T [K] (Span 2000).
 
         >>> from thermo.fluid import load_data
         >>> water = HelmholtzEOS(load_data("H2O"))
@@ -77,7 +77,7 @@ class HelmholtzEOS:
         """All properties at rho [mol/m3] and T [K]; any broadcastable shapes, NaN in -> NaN out.
         ``prepared``: ``residual.prepare(T_r/T)`` for 1-D T, where the caller already has it.
 
-        Formulas (Span 2000, Table 3.3; Wagner & Pruss 2002, Table 6.3), with the scaled
+        Formulas (Span 2000; Wagner & Pruss 2002, Table 6.3), with the scaled
         derivatives of ``thermo.helmholtz``:
         Z = 1 + d ar_d;  u/RT = t (a0_t + ar_t);  h/RT = u/RT + Z;  s/R = u/RT - a0 - ar;
         cv/R = -t^2 (a0_tt + ar_tt);  cp/R = cv/R + (1 + d ar_d - dt ar_dt)^2 / (1 + 2 d ar_d + d^2 ar_dd);

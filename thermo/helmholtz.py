@@ -6,21 +6,21 @@ term family of the reference equations has one small evaluator; ``RESIDUAL_FAMIL
 blocks before anything is built.
 
 Evaluators return *scaled* derivatives (``Scaled``): a, delta a_d, delta^2 a_dd, tau a_t,
-tau^2 a_tt, delta tau a_dt. They are what the property formulas use (Span 2000, Table 3.3)
+tau^2 a_tt, delta tau a_dt. They are what the property formulas use (Span 2000)
 and they stay finite at delta -> 0. Every input is a 1-D float array of states; the tau-only
 factors of a block are computed once by ``prepare(tau)`` and reused by ``delta_part`` inside
 the density solver's Newton loop. Per-term arrays are term-major, shape (K terms, N states), so
 that sums over terms run along contiguous rows.
 
 Term families (n, d, t, l, eta, epsilon, beta, gamma, a, b, A, B, C, D: block arrays):
-- power: n delta^d tau^t [exp(-delta^l) when l > 0]; Span (2000), Eq. 3.49.
+- power: n delta^d tau^t [exp(-delta^l) when l > 0]; Span (2000).
 - gaussian: n delta^d tau^t exp(-eta (delta-epsilon)^2 - beta (tau-gamma)^2); Setzmann & Wagner
   (1991), doi:10.1063/1.555898.
 - nonanalytic: n Delta^b delta psi, Delta = theta^2 + B ((delta-1)^2)^a,
   theta = (1-tau) + A ((delta-1)^2)^(1/(2 beta)), psi = exp(-C (delta-1)^2 - D (tau-1)^2);
   Wagner & Pruss (2002), Eq. 6.5 and Table 6.5, doi:10.1063/1.1461829.
 - gao_b: n delta^d tau^t exp(eta (delta-epsilon)^2 + 1/(beta (tau-gamma)^2 + b)), with eta < 0
-  as stored; Gao et al. (2023), Eq. 4, doi:10.1063/5.0128269.
+  as stored; Gao et al. (2023), doi:10.1063/5.0128269.
 
 References: Span, R. Multiparameter Equations of State. Springer, Berlin (2000).
 doi:10.1007/978-3-662-04092-8
@@ -95,7 +95,7 @@ def _tau_powers(tau: np.ndarray, t: np.ndarray) -> np.ndarray:
 
 
 class PowerTerms:
-    """n delta^d tau^t exp(-delta^l) (no exponential where l = 0); Span (2000), Eq. 3.49."""
+    """n delta^d tau^t exp(-delta^l) (no exponential where l = 0); Span (2000)."""
 
     fields = ("n", "d", "t", "l")
 
@@ -405,7 +405,7 @@ class _IdealPower:
 
 
 class _IdealPlanckEinstein:
-    """sum n ln(1 - exp(-t tau)); Span (2000), Table 3.1."""
+    """sum n ln(1 - exp(-t tau)); Span (2000)."""
 
     def __init__(self, block: dict):
         c = _arrays(block, ("n", "t"), "planck_einstein")
@@ -423,7 +423,7 @@ IDEAL_FAMILIES = {"lead": _IdealLead, "offset": _IdealLead, "log_tau": _IdealLog
 
 
 class IdealHelmholtz:
-    """alpha0(delta, tau) = ln delta + the tau-only ideal-gas blocks (Span 2000, Eq. 3.16)."""
+    """alpha0(delta, tau) = ln delta + the tau-only ideal-gas blocks (Span 2000)."""
 
     def __init__(self, blocks: list[dict]):
         self.families = [_family(b, IDEAL_FAMILIES, "ideal-gas") for b in blocks]
