@@ -124,6 +124,7 @@ def _read_one(path: Path, options: dict) -> Table:
     if complete:
         lines.pop()
     special = _comment_lines(data)
+    del data  # the lines hold the text now: free the bytes before the rows are parsed
     is_run_log = bool(lines) and lines[0] == FORMAT_LINE
     metadata, events, bad = {}, [], []
     for i in special:
