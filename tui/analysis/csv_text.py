@@ -3,8 +3,8 @@
 Formatting a million rows with `%` costs seconds; here each chunk of rows becomes one byte
 matrix: numbers are written in fixed point by integer digit arithmetic, labels are looked up
 from a small table, and the NUL padding between them is squeezed out at the end. Undefined
-numbers (NaN) become empty fields; infinities and numbers too large for fixed point are
-written in exponent form.
+numbers are written `nan` (as in the run logs); infinities and numbers too large for fixed
+point are written in exponent form.
 """
 
 from __future__ import annotations
@@ -22,6 +22,7 @@ CHUNK_ROWS = 65_536
 _PAD = 0  # NUL: never part of a field, removed before writing
 _DIGIT = ord("0")
 _MAX_FIXED = 9.0e17  # below 2**63 with room for rounding
+_NAN = b"nan"
 
 
 @dataclass(frozen=True, slots=True)
@@ -108,8 +109,19 @@ def _number_field(values: np.ndarray, decimals: int) -> np.ndarray:
     if decimals:
         point = np.where(fixed, ord("."), _PAD).astype(np.uint8)[:, None]
         parts += [point, digits[:, width - decimals :]]
-    field = np.hstack(parts)
+    field = _with_nan(np.hstack(parts), np.isnan(values))
     return _with_exponent_form(field, values, fixed)
+
+
+def _with_nan(field: np.ndarray, undefined: np.ndarray) -> np.ndarray:
+    """Write `nan` where the value is undefined, as the run logs do."""
+    if not undefined.any():
+        return field
+    if field.shape[1] < len(_NAN):
+        field = np.hstack([field, np.zeros((field.shape[0], len(_NAN) - field.shape[1]), dtype=np.uint8)])
+    field[undefined] = _PAD
+    field[undefined, : len(_NAN)] = np.frombuffer(_NAN, dtype=np.uint8)
+    return field
 
 
 def _with_exponent_form(field: np.ndarray, values: np.ndarray, fixed: np.ndarray) -> np.ndarray:

@@ -94,7 +94,8 @@ def _kind_of(margin: str):
 def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     """Read one log and replay it through the monitor under --config and each --compare-config."""
     progress.stage(f"reading {log.name}")
-    table = read_table(run_parts(log) if table_is_run_log(log) else log, **reader_options(args))
+    # of a run log's text columns only the quality is needed: phase and alarms are recomputed
+    table = read_table(run_parts(log) if table_is_run_log(log) else log, texts=("quality",), **reader_options(args))
     if len(table) == 0:
         raise UsageError(f"{log}: no readable sample (of {len(table.bad_lines)} data lines)")
     config = choose_config(args, table, log)
