@@ -13,12 +13,13 @@ never overwritten). Every part starts with the same header:
 
 then one row per sample, and events in time order among the rows:
 
-    12.500000,1796163654.783560,5012300.0,301.25,ok,liquid,-2.1,-310000.0,84.3,0.052,,,"p=50.123 bar T=28.10 degC"
+    12.500000,1796163654.783560,5012300,301.25,ok,liquid,-2.1,-310000,84.3,0.052,,,"p=50.123 bar T=28.10 degC"
     # event {"t_s": 12.5, "t_wall": 1796163654.78356, "kind": "alarm", "condition": "near-saturation", ...}
 
 - `t_s` is seconds since the run's first sample; `t_wall` seconds since the Unix epoch (UTC).
-- Values are SI (Pa absolute, K); margins as in `tui.monitor.model.MARGINS`; `nan` where
-  undefined or unclassified.
+- Values are SI (Pa absolute, K) to 10 significant digits (times to the microsecond, margins
+  to 7 digits: finer than any gauge resolves); margins as in `tui.monitor.model.MARGINS`;
+  `nan` where undefined or unclassified.
 - `quality` is a NAMUR NE 107 category (`ok`, `failure`, `function-check`,
   `out-of-specification`, `maintenance-required`); `phase` a thermo label or `unclassified`.
 - `active_alarms` are condition names joined by `;`; `reasons` the quality reasons joined by

@@ -52,9 +52,9 @@ def _row(reading, t0: float) -> str:
     if "," in alarms or '"' in alarms:
         alarms = '"' + alarms.replace('"', '""') + '"'
     return (
-        f"{s.t_monotonic - t0:.6f},{s.t_wall:.6f},{s.pressure_Pa},{s.temperature_K},{s.quality.value},{reading.phase},"
-        f"{m.get('dT_saturation_K', NAN)},{m.get('dp_saturation_Pa', NAN)},{m.get('dT_solid_K', NAN)},"
-        f"{m.get('critical_distance', NAN)},{alarms},{reasons},\"{raw}\"\n"
+        f"{s.t_monotonic - t0:.6f},{s.t_wall:.6f},{s.pressure_Pa:.10g},{s.temperature_K:.10g},{s.quality.value},{reading.phase},"
+        f"{m.get('dT_saturation_K', NAN):.7g},{m.get('dp_saturation_Pa', NAN):.7g},{m.get('dT_solid_K', NAN):.7g},"
+        f"{m.get('critical_distance', NAN):.7g},{alarms},{reasons},\"{raw}\"\n"
     )
 
 
