@@ -28,6 +28,14 @@ from tui.monitor.model import Event
 ALARM_LOG_LENGTH = 1000
 
 
+def format_duration(seconds: float) -> str:
+    """'45 s', '10 min', '2.5 h' (shelve and flood messages)."""
+    for unit, size in (("h", 3600.0), ("min", 60.0)):
+        if seconds >= 2 * size:
+            return f"{format_number(seconds / size, 3).rstrip('0').rstrip('.')} {unit}"
+    return f"{format_number(seconds, 3).rstrip('0').rstrip('.') if seconds % 1 else int(seconds)} s"
+
+
 class AlarmState(StrEnum):
     NORMAL = "normal"
     UNACKNOWLEDGED = "unacknowledged"
@@ -96,7 +104,7 @@ class FloodGuard:
         return self._recent[-self.end_alarms][0] + self.window_s
 
     def start_message(self) -> str:
-        return (f"alarm flood: {len(self._recent)} alarms within {format_number(self.window_s, 3)} s "
+        return (f"alarm flood: {len(self._recent)} alarms within {format_duration(self.window_s)} "
                 f"(more than {self.alarms}); every alarm is still logged")
 
     def end(self, t_s: float) -> str:
@@ -104,7 +112,7 @@ class FloodGuard:
         total = sum(self._during.values())
         detail = ", ".join(f"{name} x{count}" for name, count in self._during.most_common())
         self.flooding = False
-        return f"alarm flood over after {format_number(t_s - self._started, 3)} s: {total} alarms ({detail})"
+        return f"alarm flood over after {format_duration(t_s - self._started)}: {total} alarms ({detail})"
 
     @property
     def count(self) -> int:
@@ -209,14 +217,14 @@ class AlarmBoard:
     def shelve(self, condition: str, seconds: float, t_s: float, t_wall: float) -> list[Event]:
         """Keep an alarm out of annunciation for `seconds` (at most the configured maximum)."""
         if not 0.0 < seconds <= self.max_shelve_s:
-            raise UsageError(f"shelve for more than 0 s and at most {format_number(self.max_shelve_s, 4)} s, "
-                             f"not {format_number(seconds, 4)} s")
+            raise UsageError(f"shelve for more than 0 s and at most {format_duration(self.max_shelve_s)}, "
+                             f"not {format_duration(seconds)}")
         events = []
         for name in self.names(condition):
             point = self._points[name]
             point.shelved_until = t_s + seconds
             point.state = AlarmState.NORMAL
-            events.append(self._action(point, "shelve", f"shelved for {format_number(seconds, 4)} s", t_s, t_wall))
+            events.append(self._action(point, "shelve", f"shelved for {format_duration(seconds)}", t_s, t_wall))
         return events
 
     def unshelve(self, condition: str, t_s: float, t_wall: float, alarm_for) -> list[Event]:

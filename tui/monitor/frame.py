@@ -17,6 +17,8 @@ QUALITY_CODE = {quality: code for code, quality in enumerate(QUALITIES)} | {
 }
 OK_CODE = QUALITY_CODE[Quality.OK]
 CLASSIFIABLE = np.array([quality.classifiable for quality in QUALITIES])
+#: codes (of phases or qualities) are below this, so lookup tables can replace set tests
+CODE_LIMIT = 256
 
 
 class PhaseCodes:
@@ -33,6 +35,8 @@ class PhaseCodes:
 
     def code(self, label: str) -> int:
         if label not in self._code:
+            if len(self.labels) >= CODE_LIMIT:
+                raise ValueError(f"more than {CODE_LIMIT} phase labels; {label!r} is one too many")
             self._code[label] = len(self.labels)
             self.labels.append(label)
         return self._code[label]

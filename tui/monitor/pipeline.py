@@ -201,10 +201,12 @@ def run_live(source, monitor: Monitor, sinks: Iterable[Sink], stop: threading.Ev
     try:
         ended = False
         while not ended and not stop.is_set():
+            started = time.monotonic()
             items, ended, failure = _drain(inbox, poll_s)
             _deliver(monitor, sinks, items, None if clock is None else clock())
             if failure is not None:
                 break
+            stop.wait(max(0.0, poll_s - (time.monotonic() - started)))  # one chunk per poll_s, not per batch
     finally:
         halt.set()
         reader.join(timeout=2.0)

@@ -18,7 +18,7 @@ def last_true_index(mask: np.ndarray) -> np.ndarray:
 
 def _fill(values: np.ndarray, index: np.ndarray, before: np.ndarray) -> np.ndarray:
     """values[row, index] where index >= 0, else the carried value `before[row]`."""
-    taken = np.take_along_axis(values, index.clip(0), axis=-1)
+    taken = values[np.arange(values.shape[0])[:, None], np.maximum(index, 0)]
     return np.where(index >= 0, taken, before[:, None])
 
 
@@ -68,7 +68,7 @@ class Settle:
         if self.delays.shape[1] == 1:
             delay = self.delays
         else:
-            delay = np.take_along_axis(self.delays, codes.astype(np.intp), axis=1)
+            delay = self.delays[np.arange(codes.shape[0])[:, None], codes]
         adopt = (t - run_start) >= delay
         if gate is not None:
             adopt &= gate

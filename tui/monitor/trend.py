@@ -39,6 +39,8 @@ class Trend:
         self._hist_y = np.empty((rows, 0))
         first, second = np.triu_indices(bins, k=1)
         self._pair_first, self._pair_second = first, second
+        self._known_slot, self._known_rates = -1, np.full((rows, 1), np.nan)
+        """The rates of the newest slot: they hold for every sample in it, so compute them once."""
 
     def __call__(self, t: np.ndarray, values: np.ndarray) -> np.ndarray:
         """t: sample times (n,) [s]; values: margins (rows, n), NaN where undefined -> rates (rows, n) [unit/s]."""
@@ -51,10 +53,13 @@ class Trend:
         slot = np.maximum.accumulate(np.maximum(slot, self._last_slot))  # a clock stepping back stays in its slot
         self._last_slot = int(slot[-1])
         self._close_slots(slot, t, values)
+        if slot[0] == self._last_slot == self._known_slot:  # the common live case: one slot, already known
+            return np.repeat(self._known_rates, n, axis=1)
         wanted, where = np.unique(slot, return_inverse=True)
         rates = np.concatenate(
             [self._rates(wanted[i:i + _SLOT_BLOCK]) for i in range(0, wanted.size, _SLOT_BLOCK)], axis=1
         )
+        self._known_slot, self._known_rates = int(wanted[-1]), rates[:, -1:]
         return rates[:, where]
 
     def _close_slots(self, slot: np.ndarray, t: np.ndarray, values: np.ndarray) -> None:
