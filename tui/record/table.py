@@ -28,6 +28,7 @@ from pathlib import Path
 import numpy as np
 
 from thermo.units import STANDARD_ATMOSPHERE, UnitError
+from tui.acquire.sample import Quality
 from tui.acquire.units import pressure_map, temperature_map
 from tui.errors import UsageError
 from tui.record.recorder import COLUMNS, EVENT_PREFIX, FORMAT_LINE, META_PREFIX
@@ -210,7 +211,20 @@ def _read_run_log(header: str, rows: list[str], numbers: np.ndarray, bad: list, 
     wanted = {c: names.index(c) for c in RUN_LOG_NUMBERS}
     text_cols = {c: names.index(c) for c in texts}
     values, strings, good = _parse_rows(rows, numbers, names, wanted, text_cols, ",", bad)
+    if "quality" in text_cols:
+        values, strings = _known_quality(values, strings, list(text_cols).index("quality"), numbers[good], bad)
     return dict(zip(wanted, np.ascontiguousarray(values.T))) | dict(zip(text_cols, strings.T))
+
+
+def _known_quality(values: np.ndarray, strings: np.ndarray, column: int, numbers: np.ndarray, bad: list):
+    """Drop (and report) the rows whose quality is no NAMUR NE 107 category: a garbled cell
+    must not stop the other rows from being used."""
+    known = np.zeros(len(strings), dtype=bool)
+    for quality in Quality:
+        known |= strings[:, column] == quality.value
+    for number, label in zip(numbers[~known].tolist(), strings[~known, column].tolist()):
+        bad.append((int(number), f"quality {label[:40]!r} is not one of {', '.join(q.value for q in Quality)}"))
+    return (values, strings) if known.all() else (values[known], strings[known])
 
 
 def _read_csv(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
