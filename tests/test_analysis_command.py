@@ -116,7 +116,7 @@ def test_a_run_log_is_replayed_under_its_recorded_configuration_with_the_live_ev
 @pytest.mark.parametrize(
     "name, bad, samples",
     [
-        ("co2-boiling-garbled.csv", {20: "garbled", 35: "'fifty bar' is not a number", 70: "garbled"}, 87),
+        ("co2-boiling-garbled.csv", {20: "garbled", 35: "'fifty bar' is not a number", 70: "garbled", 80: "quality 'o?k'"}, 86),
         ("co2-boiling-truncated.csv", {99: "truncated last line"}, 89),
     ],
 )
