@@ -77,6 +77,8 @@ def run(args: argparse.Namespace) -> int:
     if args.interval <= 0 or args.hook_timeout <= 0:
         raise UsageError("--interval and --hook-timeout must be positive numbers of seconds")
     headless = args.headless or args.jsonl
+    if args.on_alarm and not headless:
+        raise UsageError("--on-alarm runs with --headless (the screen shows alarms itself)")
     hook_argv = split_command(args.on_alarm) if args.on_alarm else None
     options = SourceOptions.from_args(args)
     source = open_source(args.source, options)
