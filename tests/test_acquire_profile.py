@@ -1,5 +1,6 @@
 """Gauge profiles: the fixtures load, every mistake is one line naming the key, fuzzing never escapes."""
 
+import tempfile
 from pathlib import Path
 
 import pytest
@@ -100,3 +101,15 @@ def test_fuzz_profile_loader_with_random_text(text):
         parse_profile(text, "fuzz.toml")
     except UsageError as exc:
         assert str(exc).startswith("profile fuzz.toml: ")
+
+
+@settings(max_examples=200, deadline=None)
+@given(data=st.binary(max_size=200))
+def test_fuzz_profile_files_with_random_bytes(data):
+    with tempfile.NamedTemporaryFile(suffix=".toml") as handle:
+        handle.write(data)
+        handle.flush()
+        try:
+            load_profile(handle.name)
+        except UsageError as exc:
+            assert "\n" not in str(exc)

@@ -93,6 +93,8 @@ def test_bad_ports_are_one_line_usage_errors():
         open_source("bogus://x")
     with pytest.raises(UsageError, match="no source given"):
         open_source("")
+    with pytest.raises(UsageError, match="play a scenario with virtual:fixtures/scenarios/nitrogen-transfer.toml"):
+        open_source("fixtures/scenarios/nitrogen-transfer.toml")
 
 
 def test_tcp_peer_goes_away_and_comes_back(tmp_path):

@@ -58,6 +58,9 @@ def open_source(spec: str, options: SourceOptions = SourceOptions()) -> Source:
     if not _URL.match(spec) and _is_file(spec):
         from tui.acquire.replay import ReplaySource
 
+        if spec.lower().endswith(".toml"):
+            raise UsageError(f"{spec} is TOML, not a log to replay: play a scenario with virtual:{spec}")
+
         return ReplaySource(Path(spec), options)
     from tui.acquire.serial_source import SerialSource
 

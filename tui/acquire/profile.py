@@ -286,8 +286,8 @@ def _check_emit(reader: _Reader, template: str | None) -> None:
         reader.fail(f"emit template {template!r}: {exc}")
 
 
-def _profile(reader: _Reader, role: str | None) -> GaugeProfile:
-    top = reader
+def _profile(top: _Reader, role: str | None) -> GaugeProfile:
+    """One device's profile from its table; `role` names the one quantity it carries, if so."""
     serial = top.sub("serial", {"baudrate", "bytesize", "parity", "stopbits"})
     settings = {}
     if "baudrate" in serial.table:

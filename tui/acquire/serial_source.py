@@ -121,7 +121,6 @@ class SerialSource(Source):
     def _read_chunk(self) -> bytes:
         """What is waiting, or what arrives within the timeout (b'' if nothing)."""
         port = self.port
-        waiting = port.in_waiting
         if isinstance(port, protocol_socket.Serial):
             # socket:// reports only readable or not: read what is there without waiting
             data = port.read(1)
@@ -132,6 +131,7 @@ class SerialSource(Source):
                 finally:
                     port.timeout = self._timeout
             return data
+        waiting = port.in_waiting
         if waiting:
             return port.read(waiting)
         data = port.read(1)

@@ -13,6 +13,7 @@ from dataclasses import replace
 from tui.acquire.profile import load_profile
 from tui.acquire.scenario import builtin_scenarios, load_scenario
 from tui.acquire.simulator import PtyOutlet, Simulator, TcpOutlet
+from tui.cli import SAFETY_NOTE
 from tui.errors import UsageError
 
 
@@ -23,6 +24,7 @@ def add_parser(subparsers) -> None:
         description="Play a scenario (ramps and holds of pressure and temperature, with noise and faults) "
         "as a gauge would send it. Prints where to connect as the first line on stdout. "
         f"Built-in scenarios: {', '.join(builtin_scenarios())}.",
+        epilog=SAFETY_NOTE,
     )
     parser.add_argument("scenario", metavar="SCENARIO", help="scenario file (TOML) or built-in name")
     where = parser.add_mutually_exclusive_group()
