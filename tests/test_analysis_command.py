@@ -132,6 +132,17 @@ def test_broken_logs_name_each_bad_line_and_the_rest_is_analysed(capsys, name, b
     assert summary["phase_changes"] == clean["phase_changes"]
 
 
+def test_a_sample_earlier_than_the_one_before_it_is_left_out(capsys, tmp_path):
+    lines = (LOGS / "co2-heating-50bar.csv").read_text().splitlines()
+    stepped_back = tmp_path / "clock-stepped-back.csv"
+    stepped_back.write_text("\n".join([*lines[:51], "10.0,50.000,10.500", *lines[51:]]) + "\n")
+    summary, err = analyze_json(capsys, stepped_back, "--fluid", "CO2")
+    clean, _ = analyze_json(capsys, LOGS / "co2-heating-50bar.csv", "--fluid", "CO2")
+    assert err == f"rigside analyze: {stepped_back}: 1 samples earlier than one before them; left out\n"
+    assert summary["out_of_order_samples"] == 1
+    assert (summary["samples"], summary["time_in_phase_s"], summary["gaps"]) == (clean["samples"], clean["time_in_phase_s"], [])
+
+
 def test_the_annotated_copy_replays_as_a_log(capsys, tmp_path):
     out = tmp_path / "annotated.csv"
     status, _, err = analyze(capsys, LOGS / "co2-heating-50bar.csv", "--fluid", "CO2", "--annotate", out)

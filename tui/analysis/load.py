@@ -101,29 +101,40 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     config = choose_config(args, table, log)
     fluid_name = config.fluid
     quality = table.columns.get("quality")
-    if quality is None:
-        quality = np.full(len(table), "ok")
+    columns = {"t_s": table["t_s"], "t_wall": table["t_wall"], "pressure_Pa": table["pressure_Pa"],
+               "temperature_K": table["temperature_K"], "quality": np.full(len(table), "ok") if quality is None else quality}
+    in_order = in_time_order(columns["t_s"])
+    if not in_order.all():
+        columns = {name: values[in_order] for name, values in columns.items()}
+    t, p, T, quality = columns["t_s"], columns["pressure_Pa"], columns["temperature_K"], columns["quality"]
     progress.stage(f"replaying {log.name}")
-    result = run_batch(table["t_s"], table["pressure_Pa"], table["temperature_K"], quality, config, t_wall=table["t_wall"])
+    result = run_batch(t, p, T, quality, config, t_wall=columns["t_wall"])
     others = {}
     for path in args.compare_config:
         other = load_config(path, fluid=fluid_name)  # the same fluid: only the limits differ
         progress.stage(f"replaying {log.name} under {Path(path).name}")
-        others[Path(path).name] = run_batch(table["t_s"], table["pressure_Pa"], table["temperature_K"], quality, other).events
+        others[Path(path).name] = run_batch(t, p, T, quality, other).events
     run = AnalysedRun(
         source=str(log),
         fluid=thermo.fluid(fluid_name).name,
-        t_s=table["t_s"],
-        pressure_Pa=table["pressure_Pa"],
-        temperature_K=table["temperature_K"],
+        t_s=t,
+        pressure_Pa=p,
+        temperature_K=T,
         quality=quality,
         phase=result.phase,
         margins=result.margins,
         active_alarms=result.active_alarms,
         events=result.events,
         bad_lines=tuple(BadLine(line, reason) for line, reason in table.bad_lines),
+        out_of_order=int(in_order.size - in_order.sum()),
     )
     return LoadedRun(run, thermo.fluid(fluid_name), config, others)
+
+
+def in_time_order(t_s: np.ndarray) -> np.ndarray:
+    """Which samples keep time moving forward: one earlier than any sample before it (a clock
+    stepped back, rows pasted out of order) is left out rather than read as negative time."""
+    return t_s >= np.maximum.accumulate(t_s)
 
 
 def table_is_run_log(path: Path) -> bool:

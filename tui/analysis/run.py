@@ -45,6 +45,8 @@ class AnalysedRun:
     events: tuple[Event, ...] = ()
     """The events the pipeline raised, in time order."""
     bad_lines: tuple[BadLine, ...] = ()
+    out_of_order: int = 0
+    """Samples left out because their time was earlier than that of a sample before them."""
 
     @property
     def samples(self) -> int:

@@ -87,6 +87,8 @@ class RunSummary:
     samples: int
     samples_by_quality: dict[str, int]
     bad_lines: tuple[BadLine, ...]
+    out_of_order: int
+    """Samples left out because their time went back."""
     gap_threshold_s: float
     gaps: tuple[Gap, ...]
     time_in_phase_s: dict[str, float]
@@ -127,6 +129,7 @@ def summarise(
         samples=run.samples,
         samples_by_quality={q: int(n) for q, n in label_totals(run.quality, np.ones(t.size)).items()},
         bad_lines=run.bad_lines,
+        out_of_order=run.out_of_order,
         gap_threshold_s=threshold,
         gaps=gaps,
         time_in_phase_s=label_totals(run.phase, dwell),
@@ -227,6 +230,7 @@ def summary_json(summary: RunSummary) -> dict:
         "samples": summary.samples,
         "samples_by_quality": summary.samples_by_quality,
         "bad_lines": [{"line": bad.line, "reason": bad.reason} for bad in summary.bad_lines],
+        "out_of_order_samples": summary.out_of_order,
         "gap_threshold_s": _number(summary.gap_threshold_s),
         "gap_total_s": summary.gap_s,
         "gaps": [{"start_s": g.start_s, "end_s": g.end_s, "duration_s": g.duration_s} for g in summary.gaps],

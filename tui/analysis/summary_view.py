@@ -35,6 +35,7 @@ def _overview(summary: RunSummary) -> Table:
         ["duration [s]", seconds(summary.duration_s)],
         ["samples", f"{summary.samples} ({qualities})" if qualities else "0"],
         ["unreadable lines", str(len(summary.bad_lines))],
+        ["samples out of time order", f"{summary.out_of_order} (left out)" if summary.out_of_order else "0"],
         ["gaps", f"{len(summary.gaps)}, {seconds(summary.gap_s)} s in all (longer than {seconds(summary.gap_threshold_s)} s)"],
     ]
     return Table(["", ""], rows)

@@ -129,7 +129,7 @@ def run(args: argparse.Namespace) -> int:
 
 def _analyse_one(log: Path, args: argparse.Namespace, outputs: Outputs, progress: Progress) -> Analysed:
     loaded = load_run(log, args, progress)
-    _report_bad_lines(log, loaded)
+    _report_skipped(log, loaded)
     summary = summarise(loaded.run, near_limits=loaded.near_limits, gap_threshold_s=args.gap_s,
                         alarms_under=loaded.alarms_under)
     if outputs.annotate:
@@ -146,12 +146,16 @@ def _analyse_one(log: Path, args: argparse.Namespace, outputs: Outputs, progress
     return Analysed(summary, loaded.units, loaded.notes, kept)
 
 
-def _report_bad_lines(log: Path, loaded: LoadedRun) -> None:
+def _report_skipped(log: Path, loaded: LoadedRun) -> None:
+    """One line per unreadable line (the first few) and for samples out of time order."""
     bad = loaded.run.bad_lines
     for line in bad[:BAD_LINES_SHOWN]:
         print(f"rigside analyze: {log} line {line.line}: {line.reason}; skipped, the other lines are analysed", file=sys.stderr)
     if len(bad) > BAD_LINES_SHOWN:
         print(f"rigside analyze: {log}: {len(bad) - BAD_LINES_SHOWN} more unreadable lines (see --json)", file=sys.stderr)
+    if loaded.run.out_of_order:
+        print(f"rigside analyze: {log}: {loaded.run.out_of_order} samples earlier than one before them; left out",
+              file=sys.stderr)
 
 
 def _write_annotated(loaded: LoadedRun, outputs: Outputs, progress: Progress) -> None:
