@@ -6,6 +6,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from tui.errors import UsageError
 from tui.monitor.config import load_config
 from tui.monitor.engine import Engine
 from tui.monitor.frame import OK_CODE, QUALITY_CODE
@@ -182,7 +183,7 @@ def test_a_shelved_alarm_is_silent_until_its_shelve_expires(tmp_path):
     kinds = [(e.kind, e.t_s) for e in events if e.condition == "saturation-temperature"]
     assert kinds == [("shelve", 60.0), ("alarm", 60.0)]
     assert not active[row, t < 60.0].any() and active[row, t >= 60.0].all()
-    with pytest.raises(Exception, match="at most"):
+    with pytest.raises(UsageError, match="at most 8 h"):
         engine.board.shelve("saturation-temperature", 1e9, 100.0, 0.0)
 
 

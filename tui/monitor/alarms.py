@@ -131,13 +131,13 @@ class AlarmBoard:
 
     # -- what the chunk walk calls, in time order -------------------------------------------
 
-    def point(self, index: int) -> _Point:
+    def _point(self, index: int) -> _Point:
         return self._points[self._order[index]]
 
     def condition_changed(self, index: int, active: bool, event: Event) -> list[Event]:
         """The delayed condition of point `index` became active or clear; `event` is the
         alarm or clear event to annunciate (its kind is set here)."""
-        point = self.point(index)
+        point = self._point(index)
         point.active = active
         if point.shelved_until is not None:
             return []
@@ -154,7 +154,7 @@ class AlarmBoard:
     def shelve_expired(self, index: int, alarm: Event) -> list[Event]:
         """The shelve of point `index` ran out at `alarm`'s time; `alarm` is annunciated if
         the condition still holds."""
-        point = self.point(index)
+        point = self._point(index)
         point.shelved_until = None
         events = [self._action(point, "shelve", "shelve expired", alarm.t_s, alarm.t_wall)]
         if point.active:
@@ -269,4 +269,4 @@ class AlarmBoard:
         return [point.condition for point in self._points.values() if point.annunciated]
 
     def shelved_until(self, index: int) -> float | None:
-        return self.point(index).shelved_until
+        return self._point(index).shelved_until

@@ -115,25 +115,25 @@ class _MarginBase(Condition):
         self.row = MARGINS.index(self.kind.margin)
         self.format = _Formatter(self.kind, settings, config.pressure_unit, config.temperature_unit)
 
-    def _distance_and_limits(self, frame: Frame) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-        """Distance to the curve, the limit, the deadband [margin unit] and the scale of a
-        relative limit (the saturation pressure p - dp; 1 otherwise), per sample."""
+    def _distance(self, frame: Frame):
+        """Distance to the curve [margin unit], and the scale of the limits: the saturation
+        pressure p - dp for a relative limit, else 1."""
         margin = frame.margins[self.row]
         distance = np.abs(margin) if self.kind.two_sided else margin
-        scale = np.abs(frame.pressure_Pa - margin) if self.settings.relative else np.ones(distance.shape)
-        return distance, self.settings.limit * scale, self.settings.deadband * scale, scale
+        return distance, np.abs(frame.pressure_Pa - margin) if self.settings.relative else 1.0
 
 
 class MarginLimit(_MarginBase):
     """A margin at or within its limit; clear past limit + deadband; an undefined margin is clear."""
 
     def judge(self, frame: Frame) -> Judgement:
-        distance, limit, deadband, scale = self._distance_and_limits(frame)
+        distance, scale = self._distance(frame)
+        limit, deadband = self.settings.limit * scale, self.settings.deadband * scale
         decision = _decide(distance <= limit, (distance > limit + deadband) | np.isnan(distance))
         if self.settings.relative:
             with np.errstate(invalid="ignore", divide="ignore"):
-                return Judgement(decision, distance / scale, np.full(distance.shape, self.settings.limit))
-        return Judgement(decision, distance, limit)
+                distance = distance / scale
+        return Judgement(decision, distance, np.full(distance.shape, self.settings.limit))
 
     def alarm_message(self, frame, index, value, limit):
         below = frame.margins[self.row, index] < 0.0
@@ -148,28 +148,25 @@ class MarginTrend(_MarginBase):
     """The margin predicted, at its present rate, to reach the limit within the horizon."""
 
     def judge(self, frame: Frame) -> Judgement:
-        distance, limit, _, _ = self._distance_and_limits(frame)
+        distance, scale = self._distance(frame)
+        limit = self.settings.limit * scale
         margin, rate = frame.margins[self.row], frame.rates[self.row]
         closing = -rate * np.sign(margin) if self.kind.two_sided else -rate
-        with np.errstate(invalid="ignore", divide="ignore"):
-            to_limit = np.where((closing > 0.0) & (distance > limit), (distance - limit) / closing, np.inf)
-        to_limit = np.where(np.isnan(rate) & ~np.isnan(distance), np.nan, to_limit)
+        reaching = (closing > 0.0) & (distance > limit)
+        to_limit = np.divide(distance - limit, closing, out=np.full(distance.shape, np.inf), where=reaching)
+        to_limit[np.isnan(rate) & ~np.isnan(distance)] = np.nan
         horizon = self.settings.horizon_s
         decision = _decide(to_limit <= horizon, to_limit > horizon + self.settings.horizon_deadband_s)
         return Judgement(decision, to_limit, np.full(to_limit.shape, horizon))
 
-    def _limit_text(self, frame: Frame, index: int) -> str:
-        _, limit, _, _ = self._distance_and_limits(frame)
-        return self.format(self.settings.limit if self.settings.relative else float(limit[index]))
-
     def alarm_message(self, frame, index, value, limit):
         return (f"at the present rate {self.kind.trend_phrase} reaches its limit of "
-                f"{self._limit_text(frame, index)} in about {format_number(value, 3)} s "
+                f"{self.format(self.settings.limit)} in about {format_number(value, 3)} s "
                 f"(horizon {format_number(limit, 3)} s)")
 
     def clear_message(self, frame, index, value, limit):
         return (f"back to normal: {self.kind.trend_phrase} is no longer predicted to reach "
-                f"{self._limit_text(frame, index)} within {format_number(limit, 3)} s")
+                f"{self.format(self.settings.limit)} within {format_number(limit, 3)} s")
 
 
 class PhaseIn(Condition):
