@@ -197,6 +197,7 @@ def test_figures_are_written_as_png_and_svg(capsys, tmp_path):
         ([LOGS / "co2-heating-50bar.csv", "--fluid", "CO2", "--report", "out.pdf"], "name it .html or .md"),
         ([LOGS / "co2-boiling-run.csv", "--config", LOGS / "water.toml"], "water.toml is for water but"),
         ([LOGS / "co2-heating-50bar.csv", "--fluid", "CO2", "--annotate", LOGS / "co2-heating-50bar.csv"], "is one of the logs"),
+        ([LOGS / "co2-heating-50bar.csv", f"{LOGS}/./co2-heating-50bar.csv", "--fluid", "CO2", "--figures", "out"], "share the name"),
     ],
 )
 def test_bad_usage_is_one_line_and_exit_status_2(capsys, tmp_path, args, message):

@@ -85,11 +85,18 @@ class Outputs:
         return self.annotate / f"{log.stem}-annotated.csv" if self.annotate_is_dir else self.annotate
 
     def _refuse_overwriting(self, logs: list[str]) -> None:
+        """No output over a log, and no two logs' outputs over each other (they are named by stem)."""
         inputs = {Path(log).resolve() for log in logs}
         written = [self.report, self.table] + [self.annotated_path(Path(log)) for log in logs if self.annotate]
         for path in written:
             if path is not None and path.resolve() in inputs:
                 raise UsageError(f"{path}: is one of the logs being analysed; choose another output name")
+        stems: dict[str, str] = {}
+        for log in logs:
+            other = stems.setdefault(Path(log).stem, log)
+            if other != log and (self.annotate_is_dir or self.figures):
+                raise UsageError(f"{other} and {log} share the name {Path(log).stem!r}, so their annotated copies "
+                                 "and figures would overwrite each other; analyse them separately")
 
 
 @dataclass(frozen=True, slots=True)
