@@ -6,6 +6,8 @@ latest view, owns the display units and the dialogs, and pushes the monitor scre
 
 from __future__ import annotations
 
+import sys
+
 from textual import work
 from textual.app import App
 from textual.worker import get_current_worker
@@ -25,6 +27,8 @@ from tui.screen.screens.note import NoteScreen
 PRESSURE_CYCLE = ("bar", "bar(g)", "MPa", "kPa", "psi", "psig")
 #: the temperature units `t` cycles through
 TEMPERATURE_CYCLE = ("degC", "K", "degF")
+#: the interpreter's thread switch interval while the screen runs [s] (Python's default: 0.005)
+THREAD_SWITCH_S = 0.001
 
 
 class RigsideApp(App):
@@ -43,6 +47,10 @@ class RigsideApp(App):
         self.curves = None
 
     def on_mount(self) -> None:
+        # Hand the interpreter between threads more often than the default 5 ms, so that the
+        # screen's thread gets a key through promptly while the pipeline thread is busy.
+        self._switch_interval = sys.getswitchinterval()
+        sys.setswitchinterval(THREAD_SWITCH_S)
         self.push_screen(MonitorScreen())
         self.compute_curves(self.session.fluid.key)
         self.run_pipeline()
@@ -61,6 +69,7 @@ class RigsideApp(App):
 
     def on_unmount(self) -> None:
         self.session.stop()
+        sys.setswitchinterval(self._switch_interval)
 
     def on_view_changed(self, message: ViewChanged) -> None:
         self.latest_view = message.view

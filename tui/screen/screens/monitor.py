@@ -5,6 +5,7 @@ at a steady rate and hands every operator action to the session."""
 from __future__ import annotations
 
 import math
+import time
 
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -25,8 +26,11 @@ from tui.screen.widgets.phase_diagram import PhaseDiagram
 from tui.screen.widgets.property_table import PropertyTable
 from tui.screen.widgets.status_line import StatusLine
 
-#: refreshes per second of the whole screen (the pipeline may deliver far more views)
+#: refreshes per second of the screen (the pipeline may deliver far more views) ...
 REFRESH_HZ = 12
+#: ... of which this many redraw the numbers and the diagram: digits that change faster than
+#: this cannot be read, and the diagram is the costliest part (keys still redraw it at once)
+NUMBERS_HZ = 5
 #: the safety line stays at the bottom this long after start, unless a key dismisses it [s]
 SAFETY_NOTE_SECONDS = 20.0
 #: actions that only a replay can do
@@ -64,7 +68,7 @@ class MonitorScreen(Screen):
     ]
 
     refreshes = 0
-    """How many times the screen has redrawn from a new view (for the benchmark)."""
+    """How many times the screen has been refreshed from the latest view (for the benchmark)."""
 
     def compose(self) -> ComposeResult:
         yield StatusLine(id="status")
@@ -93,7 +97,9 @@ class MonitorScreen(Screen):
     def on_mount(self) -> None:
         self.set_interval(1 / REFRESH_HZ, self.refresh_view)
         self.set_timer(SAFETY_NOTE_SECONDS, self.dismiss_safety_note)
-        self._drawn: tuple | None = None
+        self._words_drawn: int | None = None
+        self._numbers_drawn: tuple | None = None
+        self._numbers_due = 0.0
         self.refresh_view()
 
     def dismiss_safety_note(self) -> None:
@@ -104,19 +110,33 @@ class MonitorScreen(Screen):
 
     # ------------------------------------------------------------ rendering
     def refresh_view(self) -> None:
-        """Draw the app's latest view; called REFRESH_HZ times a second."""
+        """Draw the app's latest view; called REFRESH_HZ times a second. Words (phase, alarms,
+        events, status) follow every new view; numbers and the diagram change NUMBERS_HZ times
+        a second, and at once when the units or the fluid change."""
         app = self.app
         view: LiveView = app.latest_view
-        units = (app.temperature_unit, app.pressure_unit)
-        self.query_one(LiveReadout).show(view, *units, now=app.session.clock())
-        key = (id(view), units, id(app.curves))
-        if key == self._drawn:
-            return
-        self._drawn = key
         self.refreshes += 1
+        if id(view) != self._words_drawn:
+            self._words_drawn = id(view)
+            self._show_words(view)
+        units = (app.temperature_unit, app.pressure_unit)
+        now = time.monotonic()
+        if (units, id(app.curves)) == self._numbers_drawn and now < self._numbers_due:
+            return
+        self._numbers_drawn, self._numbers_due = (units, id(app.curves)), now + 1.0 / NUMBERS_HZ
+        self._show_numbers(view, units)
+
+    def _show_words(self, view: LiveView) -> None:
         reading = view.reading
         self.query_one(StatusLine).show(view)
         self.query_one(PhaseBanner).phase = reading.phase if reading else "waiting for data"
+        self.query_one(AlarmList).show(view.alarms)
+        self.query_one("#alarms-box").set_class(any(a.state == "unacknowledged" for a in view.alarms), "-unacknowledged")
+        self.query_one(EventLog).show(view.events)
+
+    def _show_numbers(self, view: LiveView, units: tuple) -> None:
+        reading = view.reading
+        self.query_one(LiveReadout).show(view, *units, now=self.app.session.clock())
         for name in MARGINS:
             self.query_one(f"#margin-{name}", MarginGauge).show(
                 reading.margins.get(name, math.nan) if reading else math.nan,
@@ -126,11 +146,7 @@ class MonitorScreen(Screen):
                 *units,
             )
         self.query_one(PropertyTable).show(view.properties)
-        alarms = self.query_one(AlarmList)
-        alarms.show(view.alarms)
-        self.query_one("#alarms-box").set_class(any(a.state == "unacknowledged" for a in view.alarms), "-unacknowledged")
-        self.query_one(EventLog).show(view.events)
-        self.query_one(PhaseDiagram).show(app.curves, diagram_state(view), *units)
+        self.query_one(PhaseDiagram).show(self.app.curves, diagram_state(view), *units)
 
     # ------------------------------------------------------------ actions
     def check_action(self, action: str, parameters: tuple[object, ...]) -> bool | None:

@@ -68,6 +68,11 @@ class PhaseDiagram(Widget):
         self.border_subtitle = LEGEND
 
     @property
+    def drawn(self) -> bool:
+        """Whether the latest data, view and zoom have been drawn."""
+        return self._lines is not None
+
+    @property
     def text(self) -> str:
         """What the diagram shows, as plain text (for tests and screen readers)."""
         return "\n".join(strip.text for strip in self._render_strips())
