@@ -68,6 +68,14 @@ def test_fluid_suited_values_apply_unless_the_file_sets_the_key(tmp_path):
     assert load_config(own, fallback_fluid="N2").fluid == "H2O"
 
 
+def test_another_fluid_keeps_the_persons_values_and_takes_that_fluids_suited_ones(tmp_path):
+    own = load_config(write(tmp_path, '[conditions.two-phase]\npriority = "high"\n'), fluid="CO2")
+    water = own.for_fluid("water")
+    assert water.fluid == "water" and water.origin == own.origin
+    assert water.conditions["two-phase"].priority == "high"
+    assert water.conditions["solid-approach"].limit == 3.0
+
+
 def test_the_effective_configuration_reads_back_as_the_same(tmp_path):
     config = load_config(fluid="water")
     again = load_config(write(tmp_path, config.to_toml()))

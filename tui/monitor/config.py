@@ -17,7 +17,7 @@ import re
 import sys
 import tomllib
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from importlib.resources import files
 from pathlib import Path
 
@@ -282,10 +282,12 @@ class MonitorConfig:
     """The normalised tree (SI numbers), for printing and for run-log metadata."""
     origin: str = "defaults"
     """Where the person's layer came from: a path, or "defaults"."""
+    layer: Mapping = field(default_factory=dict)
+    """The person's layer as read (file or recorded tree), for rebuilding with another fluid."""
 
     def for_fluid(self, name: str) -> MonitorConfig:
         """The same configuration for another fluid (with that fluid's suited values)."""
-        return load_config(None if self.origin == "defaults" else self.origin, fluid=name)
+        return config_from_tree(dict(self.layer), self.origin, fluid=name)
 
     def to_toml(self) -> str:
         """The effective configuration as TOML, each normalised number with its unit."""
@@ -323,7 +325,7 @@ def config_from_tree(own: dict, where: str, *, fluid: str | None = None, fallbac
             {"fluid": chosen},
         ]
         effective = _normalise(_merge(layers))
-        return _build(effective, where)
+        return _build(effective, where, own)
     except UsageError as exc:
         raise UsageError(f"configuration {where}: {exc}") from None
 
@@ -434,7 +436,7 @@ def _units_of(path: tuple[str, ...]) -> str:
     return kind.unit if kind is not None else ""
 
 
-def _build(tree: dict, origin: str) -> MonitorConfig:
+def _build(tree: dict, origin: str, layer: dict) -> MonitorConfig:
     units, gauge, trend, flood = tree["units"], tree["gauge"], tree["trend"], tree["flood"]
     atmosphere = parse_atmosphere(units["atmosphere"]) if "atmosphere" in units else STANDARD_ATMOSPHERE
     if flood["end_alarms"] > flood["alarms"]:
@@ -460,6 +462,7 @@ def _build(tree: dict, origin: str) -> MonitorConfig:
         conditions={name: _condition(name, settings) for name, settings in tree["conditions"].items()},
         effective=tree,
         origin=origin,
+        layer=layer,
     )
 
 
