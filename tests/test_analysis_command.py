@@ -80,7 +80,7 @@ def test_other_limits_replayed_after_the_fact_count_their_own_alarms(capsys):
     def seen(tallies):
         return {a["condition"]: a for a in tallies}["saturation-temperature"]
 
-    tight, wide = seen(summary["alarms"]), seen(summary["alarms_under"]["saturation-limit-4K.toml"])
+    tight, wide = seen(summary["alarms"]), seen(summary["alarms_under"][str(LOGS / "saturation-limit-4K.toml")])
     assert (tight["count"], wide["count"]) == (1, 2)  # the approaches came within 3 K and 1 K
     assert tight["first_t_s"] == pytest.approx(expected_alarm_times(2.0)[0], abs=0.5)
     assert wide["first_t_s"] == pytest.approx(expected_alarm_times(4.0)[0], abs=0.5)

@@ -1,8 +1,9 @@
 """From a log file to an analysed run: read the table, choose fluid and configuration, and run
 the monitor's batch pipeline (the live pipeline over whole arrays) under each configuration.
 
-The fluid is the one given on the command line, else the one the log records, else the
-configuration file's; a plain CSV with none of them is refused rather than guessed.
+The fluid is the one given on the command line, else the one the log records (a configuration
+file for another fluid is refused), else the configuration file's; a plain CSV with none of
+them is refused rather than guessed.
 """
 
 from __future__ import annotations
@@ -40,7 +41,7 @@ class LoadedRun:
     """The thermo fluid."""
     config: MonitorConfig
     alarms_under: dict[str, tuple[Event, ...]] = field(default_factory=dict)
-    """Other configuration's file name -> the events of the run under it."""
+    """Other configuration's path, as given -> the events of the run under it."""
 
     @property
     def units(self) -> Units:
@@ -113,7 +114,7 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     for path in args.compare_config:
         other = load_config(path, fluid=fluid_name)  # the same fluid: only the limits differ
         progress.stage(f"replaying {log.name} under {Path(path).name}")
-        others[Path(path).name] = run_batch(t, p, T, quality, other).events
+        others[path] = run_batch(t, p, T, quality, other).events
     run = AnalysedRun(
         source=str(log),
         fluid=thermo.fluid(fluid_name).name,
