@@ -25,7 +25,7 @@ from tui.analysis.summary import RunSummary, summarise, summary_json
 from tui.analysis.summary_view import summary_sections
 from tui.analysis.tables import render_csv, render_sections_text, render_text
 from tui.cli import SAFETY_NOTE
-from tui.errors import UsageError
+from tui.errors import RuntimeFailure, UsageError
 
 #: unreadable lines named on stderr per log; the summary (and --json) lists them all
 BAD_LINES_SHOWN = 10
@@ -76,6 +76,8 @@ class Outputs:
         report = Path(args.report) if args.report else None
         if report is not None:
             report_format(report)
+        if args.figures and not figures_available():
+            raise RuntimeFailure(MISSING_EXTRA)  # before any work, not after the first log
         outputs = cls(annotate, annotate is not None and not as_file, Path(args.figures) if args.figures else None,
                       report, Path(args.table) if args.table else None)
         outputs._refuse_overwriting(args.logs)
