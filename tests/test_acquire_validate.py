@@ -115,3 +115,13 @@ def test_limits_from_a_profile_in_si():
     assert (config.stale_after_s, config.stuck_after_s) == (2.0, 120.0)
     gauge = ValidatorConfig.from_profile(load_profile("fixtures/profiles/current-loop.toml"))
     assert gauge.pressure.span == (101_325.0, 100 * BAR + 101_325.0)  # bar(g) span read against 1 atm
+
+
+def test_limits_of_a_two_device_profile_come_from_its_devices(tmp_path):
+    path = tmp_path / "pair.toml"
+    path.write_text(
+        "[devices.pressure.pressure]\nunit = 'bar'\nspan = [0, 10]\n"
+        "[devices.temperature.temperature]\nunit = 'K'\nspan = [50, 300]\n"
+    )
+    config = ValidatorConfig.from_profile(load_profile(path))
+    assert config.pressure.span == (0.0, 10 * BAR) and config.temperature.span == (50.0, 300.0)

@@ -106,3 +106,27 @@ def test_unusable_files_are_one_line_usage_errors(tmp_path, text, message):
 def test_missing_file(tmp_path):
     with pytest.raises(UsageError, match="cannot read .*absent.csv"):
         read_table(tmp_path / "absent.csv")
+
+
+def test_clean_and_garbled_run_logs_read_alike(tmp_path):
+    """A whole log takes numpy's single pass; one bad row sends it the careful way: same rows."""
+    from tui.acquire.sample import Sample
+    from tui.monitor.model import Event, Reading
+    from tui.record import RunRecorder
+
+    with RunRecorder(tmp_path / "clean.csv", {"fluid": "CO2"}) as rec:
+        for t in range(100):
+            rec.write(Reading(Sample(float(t), 1.7e9 + t, 1e6 + t, 300.0, "raw # with a hash, and a comma"), "gas", {}))
+            if t == 50:
+                rec.write_event(Event(50.0, 1.7e9, "note", "", message="half way"))
+    lines = rec.path.read_text().splitlines(keepends=True)
+    garbled = tmp_path / "garbled.csv"
+    garbled.write_text("".join(lines[:40] + ["1,2,garbage\n"] + lines[40:]))
+    texts = ("quality", "phase", "active_alarms", "reasons", "raw")
+    clean, careful = read_table(rec.path, texts=texts), read_table(garbled, texts=texts)
+    assert careful.bad_lines == [(41, "truncated or garbled: 3 of 13 fields")] and not clean.bad_lines
+    assert clean.columns.keys() == careful.columns.keys()
+    for name in clean.columns:
+        np.testing.assert_array_equal(clean[name], careful[name], err_msg=name)
+    assert clean.events == careful.events and clean.events[0]["message"] == "half way"
+    assert clean.metadata == careful.metadata and clean["raw"][0] == "raw # with a hash, and a comma"

@@ -54,7 +54,7 @@ class ValidatorConfig:
 
     @classmethod
     def from_profile(cls, profile: GaugeProfile, *, atmosphere_Pa: float = 101_325.0, **overrides) -> ValidatorConfig:
-        """Span, resolution and rate limits from a profile's quantities, in SI."""
+        """Span, resolution and rate limits from a profile's quantities (or its devices'), in SI."""
         from thermo.units import PressureUnit, TemperatureUnit
 
         def limits(quantity: Quantity, kind: str) -> Limits:
@@ -75,7 +75,11 @@ class ValidatorConfig:
             rate = quantity.rate_limit * width if quantity.rate_limit else math.inf
             return Limits(span, quantity.resolution * width, rate, si)
 
-        values = dict(pressure=limits(profile.pressure, "pressure"), temperature=limits(profile.temperature, "temperature"))
+        carriers = profile.devices or {"pressure": profile, "temperature": profile}
+        values = dict(
+            pressure=limits(carriers["pressure"].pressure, "pressure"),
+            temperature=limits(carriers["temperature"].temperature, "temperature"),
+        )
         if profile.stuck_after_s:
             values["stuck_after_s"] = profile.stuck_after_s
         if profile.stale_after_s:

@@ -113,29 +113,99 @@ def read_table(
     )
 
 
-def _read_one(path: Path, options: dict) -> Table:
+def _read_bytes(path: Path) -> bytes:
     try:
-        data = path.read_bytes()
+        return path.read_bytes()
     except OSError as exc:
         raise UsageError(f"cannot read {path}: {exc.strerror or exc}") from None
-    if b"\r" in data:
-        data = data.replace(b"\r\n", b"\n").replace(b"\r", b"\n")
-    complete = data.endswith(b"\n")
-    lines = data.decode("utf-8", "replace").split("\n")
-    if complete:
-        lines.pop()
-    special = _comment_lines(data)
-    del data  # the lines hold the text now: free the bytes before the rows are parsed
-    is_run_log = bool(lines) and lines[0] == FORMAT_LINE
+
+
+def _read_one(path: Path, options: dict) -> Table:
+    data = _read_bytes(path)
+    if data.startswith(FORMAT_LINE.encode() + b"\n"):
+        clean = _scan_clean_run_log(data)
+        if clean is not None:
+            del data  # numpy reads the file itself: keep only one copy of the text around
+            table = _load_clean_run_log(path, clean, options)
+            if table is not None:
+                return table
+            data = _read_bytes(path)
+    return _read_careful(path, data, options)
+
+
+@dataclass
+class _Clean:
+    """What one scan of a run log's bytes found, for the single-pass reader."""
+
+    header: str
+    header_at: int
+    rows: int
+    comments: list[tuple[int, str]]
+
+
+def _scan_clean_run_log(data: bytes) -> _Clean | None:
+    """Header, comment lines and row count of a run log that looks whole (ends with a line end,
+    no CR); None when only the careful path will do."""
+    if not data.endswith(b"\n") or b"\r" in data:
+        return None
+    found = _comment_lines(data)
+    comments = [(i, data[at : data.find(b"\n", at)].decode("utf-8", "replace")) for i, at in found]
+    header_at = 0
+    while header_at < len(found) and found[header_at][0] == header_at:
+        header_at += 1
+    start = data.find(b"\n", found[header_at - 1][1]) + 1 if header_at else 0
+    header = data[start : data.find(b"\n", start)].decode("utf-8", "replace")
+    return _Clean(header, header_at, data.count(b"\n") - len(comments) - 1, comments)
+
+
+def _load_clean_run_log(path: Path, clean: _Clean, options: dict) -> Table | None:
+    """All rows in one pass of numpy's reader; None if any row needs the careful path."""
+    names = next(csv.reader([clean.header]))
+    wanted, text_cols = _run_log_columns(names, options, path)
+    metadata, events, bad = _comment_records(clean.comments)
+    read = dict(delimiter=",", quotechar='"', comments="#", skiprows=clean.header_at + 1, encoding="utf-8", ndmin=2)
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", UserWarning)
+            values = np.loadtxt(path, usecols=list(wanted.values()), dtype=float, **read)
+            strings = np.loadtxt(path, usecols=list(text_cols.values()), dtype=str, **read) if text_cols else None
+    except ValueError:
+        return None
+    if len(values) != clean.rows or (strings is not None and len(strings) != clean.rows):
+        return None
+    if strings is None:
+        strings = np.empty((len(values), 0), dtype=str)
+    if "quality" in text_cols and not _known(strings[:, list(text_cols).index("quality")]).all():
+        return None  # the careful path names the rows
+    columns = dict(zip(wanted, np.ascontiguousarray(values.T))) | dict(zip(text_cols, strings.T))
+    return Table(columns, metadata, events, bad, True, str(path))
+
+
+def _comment_records(comments: list[tuple[int, str]]) -> tuple[dict, list, list]:
+    """Metadata, events and bad lines of a log's comment lines (line index, text)."""
     metadata, events, bad = {}, [], []
-    for i in special:
-        line = lines[i]
+    for i, line in comments:
         if line.startswith(META_PREFIX) and not metadata:
             metadata = _json(line[len(META_PREFIX):], i, bad, "meta")
         elif line.startswith(EVENT_PREFIX):
             event = _json(line[len(EVENT_PREFIX):], i, bad, "event")
             if event:
                 events.append(event)
+    return metadata, events, bad
+
+
+def _read_careful(path: Path, data: bytes, options: dict) -> Table:
+    """Line by line bookkeeping, so that every bad line is found and named."""
+    if b"\r" in data:
+        data = data.replace(b"\r\n", b"\n").replace(b"\r", b"\n")
+    complete = data.endswith(b"\n")
+    lines = data.decode("utf-8", "replace").split("\n")
+    if complete:
+        lines.pop()
+    special = [i for i, _ in _comment_lines(data)]
+    del data  # the lines hold the text now: free the bytes before the rows are parsed
+    is_run_log = bool(lines) and lines[0] == FORMAT_LINE
+    metadata, events, bad = _comment_records([(i, lines[i]) for i in special])
     data_index = np.setdiff1d(np.arange(len(lines)), special, assume_unique=True)
     while len(data_index) and not lines[data_index[0]].strip():
         data_index = data_index[1:]
@@ -156,18 +226,18 @@ def _read_one(path: Path, options: dict) -> Table:
     return Table(columns, metadata, events, bad, is_run_log, str(path))
 
 
-def _comment_lines(data: bytes) -> list[int]:
-    """Indices of the lines of `data` that start with '#'.
+def _comment_lines(data: bytes) -> list[tuple[int, int]]:
+    """(line index, byte offset) of the lines of `data` that start with '#'.
 
     Found with bytes.find (a fast C search), since a log has few of them among many rows.
     Empty lines need no search: the row parser skips them.
     """
-    found = [0] if data[:1] == b"#" else []
+    found = [(0, 0)] if data[:1] == b"#" else []
     at, line, counted = data.find(b"\n#"), 0, 0
     while at >= 0:
         line += data.count(b"\n", counted, at + 1)
         counted = at + 1
-        found.append(line)
+        found.append((line, at + 1))
         at = data.find(b"\n#", at + 1)
     return found
 
@@ -199,29 +269,38 @@ def _json(text: str, i: int, bad: list, what: str) -> dict:
     return value
 
 
-def _read_run_log(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
-    names = next(csv.reader([header]))
+def _run_log_columns(names: list[str], options: dict, path: Path) -> tuple[dict, dict]:
+    """Index of each number column and of each text column asked for, by name."""
     missing = [c for c in COLUMNS if c not in names]
     if missing:
         raise UsageError(f"{path}: run log header lacks column {missing[0]!r}")
-    texts = [c for c in options["texts"] if c in RUN_LOG_TEXTS]
     unknown = [c for c in options["texts"] if c not in RUN_LOG_TEXTS]
     if unknown:
         raise UsageError(f"unknown text column {unknown[0]!r}; choose from {', '.join(RUN_LOG_TEXTS)}")
-    wanted = {c: names.index(c) for c in RUN_LOG_NUMBERS}
-    text_cols = {c: names.index(c) for c in texts}
+    return {c: names.index(c) for c in RUN_LOG_NUMBERS}, {c: names.index(c) for c in options["texts"]}
+
+
+def _read_run_log(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
+    names = next(csv.reader([header]))
+    wanted, text_cols = _run_log_columns(names, options, path)
     values, strings, good = _parse_rows(rows, numbers, names, wanted, text_cols, ",", bad)
     if "quality" in text_cols:
         values, strings = _known_quality(values, strings, list(text_cols).index("quality"), numbers[good], bad)
     return dict(zip(wanted, np.ascontiguousarray(values.T))) | dict(zip(text_cols, strings.T))
 
 
+def _known(labels: np.ndarray) -> np.ndarray:
+    """Which labels are NAMUR NE 107 categories (or ok)."""
+    known = np.zeros(len(labels), dtype=bool)
+    for quality in Quality:
+        known |= labels == quality.value
+    return known
+
+
 def _known_quality(values: np.ndarray, strings: np.ndarray, column: int, numbers: np.ndarray, bad: list):
     """Drop (and report) the rows whose quality is no NAMUR NE 107 category: a garbled cell
     must not stop the other rows from being used."""
-    known = np.zeros(len(strings), dtype=bool)
-    for quality in Quality:
-        known |= strings[:, column] == quality.value
+    known = _known(strings[:, column])
     for number, label in zip(numbers[~known].tolist(), strings[~known, column].tolist()):
         bad.append((int(number), f"quality {label[:40]!r} is not one of {', '.join(q.value for q in Quality)}"))
     return (values, strings) if known.all() else (values[known], strings[known])
