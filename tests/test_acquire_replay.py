@@ -98,3 +98,12 @@ def test_linger_waits_at_the_end_for_a_seek_back(tmp_path):
     stop.set()
     worker.join(3)
     assert [round(s.t_monotonic, 1) for s in samples(items)][-5:] == [4.5, 4.6, 4.7, 4.8, 4.9]
+
+
+def test_replay_of_a_data_logger_export_fixture():
+    source = open_source("fixtures/logs/bench-logger-export.csv", SourceOptions(speed=0))
+    got = samples(play(source))
+    assert [n for n, _ in source.table.bad_lines] == [62, 122]  # the garbled row and the cut last line
+    assert len(got) == 119 and got[0].t_monotonic == 0.0 and got[-1].t_monotonic == 119.0
+    assert got[0].pressure_Pa == pytest.approx(56.2e5 + 101_325.0)  # bar(g) against 1 atm
+    assert got[0].t_wall == pytest.approx(1773478800.0)  # 2026-03-14T09:00:00Z
