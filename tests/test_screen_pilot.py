@@ -6,6 +6,8 @@ real ones. Expected values come from thermo itself: the screen must show what th
 
 from __future__ import annotations
 
+import contextlib
+
 import numpy as np
 import pytest
 
@@ -37,7 +39,16 @@ async def settle(pilot, samples):
         if app.latest_view.samples >= samples and app.curves is not None:
             break
         await pilot.pause(0.05)
-    await pilot.pause(0.2)
+    await pilot.pause(0.3)
+
+
+@contextlib.asynccontextmanager
+async def shown(states, *, size=SIZE, **options):
+    """The app over `states`, once every sample and the curves are on the screen."""
+    app = memory_app(states, **options)
+    async with app.run_test(size=size) as pilot:
+        await settle(pilot, len(states))
+        yield app, pilot
 
 
 def subcooled_state(subcooling_K):
@@ -50,9 +61,7 @@ def subcooled_state(subcooling_K):
 async def test_liquid_shows_its_phase_and_subcooling_from_thermo():
     T, p = subcooled_state(8.0)
     states = steady(T, p)
-    app = memory_app(states)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, len(states))
+    async with shown(states) as (app, pilot):
         screen = app.screen
         assert screen.query_one(PhaseBanner).phase == "liquid"
         margin = screen.query_one("#margin-dT_saturation_K", MarginGauge).text
@@ -68,9 +77,7 @@ async def test_liquid_shows_its_phase_and_subcooling_from_thermo():
 async def test_near_saturation_alarms_and_the_keys_acknowledge_and_shelve_it():
     T, p = subcooled_state(0.5)  # inside the default 2 K saturation limit
     states = steady(T, p)
-    app = memory_app(states)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, len(states))
+    async with shown(states) as (app, pilot):
         alarms = app.screen.query_one(AlarmList)
         assert "UNACK" in alarms.text and "saturation-temperature" in alarms.text
         margin = app.screen.query_one("#margin-dT_saturation_K", MarginGauge)
@@ -86,9 +93,7 @@ async def test_near_saturation_alarms_and_the_keys_acknowledge_and_shelve_it():
 
 async def test_units_switch_while_running():
     T, p = subcooled_state(5.0)
-    app = memory_app(steady(T, p, 4))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, 4)
+    async with shown(steady(T, p, 4)) as (app, pilot):
         readout = app.screen.query_one(LiveReadout)
         await pilot.press("u")
         await pilot.pause(0.2)
@@ -101,9 +106,7 @@ async def test_units_switch_while_running():
 
 async def test_diagram_keys_switch_view_and_zoom():
     T, p = subcooled_state(5.0)
-    app = memory_app(steady(T, p, 4))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, 4)
+    async with shown(steady(T, p, 4)) as (app, pilot):
         diagram = app.screen.query_one(PhaseDiagram)
         assert diagram.border_title.startswith("p–T") and "●" in diagram.text
         await pilot.press("d")
@@ -131,9 +134,7 @@ async def test_note_goes_into_the_run_log_and_quitting_asks_first(tmp_path):
     from tui.record import RunRecorder
 
     recorder = RunRecorder(tmp_path)
-    app = memory_app(steady(*subcooled_state(5.0), 4), recorder=recorder)
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, 4)
+    async with shown(steady(*subcooled_state(5.0), 4), recorder=recorder) as (app, pilot):
         await pilot.press("m")
         await pilot.press(*"valve V2 opened")
         await pilot.press("enter")
@@ -150,9 +151,7 @@ async def test_note_goes_into_the_run_log_and_quitting_asks_first(tmp_path):
 
 
 async def test_fluid_switch_reclassifies_with_the_new_fluid():
-    app = memory_app(steady(300.0, 1e5, 4))
-    async with app.run_test(size=SIZE) as pilot:
-        await settle(pilot, 4)
+    async with shown(steady(300.0, 1e5, 4)) as (app, pilot):
         await pilot.press("f")
         keys = thermo.fluids()
         here = keys.index(app.session.fluid.key)
@@ -166,3 +165,13 @@ async def test_fluid_switch_reclassifies_with_the_new_fluid():
                 break
             await pilot.pause(0.05)
         assert app.curves.name == thermo.fluid(target).name
+
+
+async def test_no_color_still_says_everything_in_words(monkeypatch):
+    monkeypatch.setenv("NO_COLOR", "1")
+    T, p = subcooled_state(0.5)
+    async with shown(steady(T, p)) as (app, pilot):
+        assert app.no_color
+        assert "UNACK" in app.screen.query_one(AlarmList).text
+        assert app.screen.query_one("#margin-dT_saturation_K", MarginGauge).text.startswith("!")
+        assert "●" in app.screen.query_one(PhaseDiagram).text

@@ -21,7 +21,8 @@ def run_watch(source, config, *, recorder=None, label: str = "", make_monitor=No
     """Show the screen over `source` (a tui.acquire Source) with the monitor built from
     `config` (a MonitorConfig) by `make_monitor(config)` (default: `Monitor(config)`; pass one
     that adds a validator for live gauges); `recorder` (a RunRecorder) gets every batch first.
-    Closes the source and the recorder before returning; the exit status is 0."""
+    Closes the source and the recorder before returning; the exit status is the app's
+    (0, or 1 when the screen failed)."""
     from tui.monitor.pipeline import Monitor
 
     paced = hasattr(source, "pacer")  # replays and the virtual gauge keep their own time
@@ -32,7 +33,7 @@ def run_watch(source, config, *, recorder=None, label: str = "", make_monitor=No
         app.run()
     finally:
         session.close(CLOSE_WAIT_S)
-    return 0
+    return app.return_code or 0
 
 
 def run_demo(scenario: str | None = None, *, speed: float = 1.0, log_dir: str | Path | None = None,

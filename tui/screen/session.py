@@ -17,6 +17,7 @@ from collections.abc import Callable
 import thermo
 from tui.monitor.model import Event
 from tui.monitor.pipeline import Sink, run_live
+from tui.monitor.sinks import RecorderSink
 from tui.screen.curves import isotherm
 from tui.screen.live import LiveFeed, LiveView, Recording, ReplayPosition
 
@@ -64,21 +65,6 @@ class ReplayControl:
     def seek_by(self, seconds: float) -> None:
         s = self._source
         s.seek(max(s.position + seconds, 0.0))
-
-
-class RecorderSink(Sink):
-    """The run log, first of the sinks: what was seen was saved."""
-
-    def __init__(self, recorder) -> None:
-        self.recorder = recorder
-
-    def write(self, readings, events) -> None:
-        self.recorder.write_many(readings)
-        for event in events:
-            self.recorder.write_event(event)
-
-    def status(self, report) -> None:
-        self.recorder.write_status(report)
 
 
 class _SwitchableMonitor:
@@ -220,10 +206,9 @@ class Session:
         self.monitor.shelve(condition)
 
     def mark(self) -> tuple[float, float]:
-        """The moment of a note: (run time t_s [s], wall time [s since the epoch])."""
-        reading, t0 = self.feed.view.reading, self.monitor.t0
-        t_s = reading.sample.t_monotonic - t0 if reading is not None and t0 is not None else 0.0
-        return t_s, time.time()
+        """The moment of a note: (run time t_s of the latest sample [s], wall time [s since the epoch])."""
+        reading = self.feed.view.reading
+        return (reading.t_s if reading is not None else 0.0), time.time()
 
     def note(self, text: str, moment: tuple[float, float]) -> None:
         """An operator note at `moment` (from `mark`): into the run log, and onto the screen."""

@@ -15,8 +15,8 @@ from tui.screen.widgets.text_panel import TextPanel
 FULL_SCALE_LIMITS = 4.0
 #: full scale when no limit is configured, in the margin's SI unit
 DEFAULT_FULL_SCALE = {"dT_saturation_K": 20.0, "dp_saturation_Pa": 10e5, "dT_solid_K": 20.0, "critical_distance": 0.5}
-LABEL_WIDTH = 12
-VALUE_WIDTH = 8
+LABEL_WIDTH = 11
+VALUE_WIDTH = 10
 #: cells kept for the trend and the time to the boundary, so the bars do not jump
 TAIL_WIDTH = 9
 _EIGHTHS = " ▏▎▍▌▋▊▉"
@@ -91,7 +91,7 @@ class MarginGauge(TextPanel):
         full_scale = FULL_SCALE_LIMITS * limit if limit > 0 else DEFAULT_FULL_SCALE[name]
         beyond = limit > 0 and distance <= limit
         self.set_class(beyond, "-beyond")
-        label = margin_label(name, value).ljust(LABEL_WIDTH)
+        label = margin_label(name, value).ljust(LABEL_WIDTH) + " "
         number = margin_value(name, value, T_unit, p_unit).rjust(VALUE_WIDTH)
         direction = trend(rate, value)
         closing = "closing" in direction
@@ -109,7 +109,7 @@ class MarginGauge(TextPanel):
             (tail, ABNORMAL if beyond and closing else ""),
         )
         if self.content_region.height >= 2:
-            detail = f"{' ' * (2 + LABEL_WIDTH)}{rate_text(name, rate, T_unit, p_unit)}"
+            detail = f"{' ' * (3 + LABEL_WIDTH)}{rate_text(name, rate, T_unit, p_unit)}"
             if closing:
                 detail += f", at the boundary in {duration(time_left)}"
             line = Content.assemble(line, "\n", (detail, "dim"))

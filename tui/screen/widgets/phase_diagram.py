@@ -84,7 +84,7 @@ class PhaseDiagram(Widget):
         self._update_titles()
         if self._curves is None or self._units is None or width < 12 or height < 3:
             message = "computing the curves…" if self._curves is None else "too small for a diagram"
-            self._lines = [Strip([Segment(message[:width])])] if width else []
+            self._lines = [Strip([Segment(message[:width], self.rich_style)])] if width else []
             return self._lines
         state = replace(self._state, view=self.view, zoom=self.zoom)
         rows = draw(self._curves, state, width, height, *self._units)
@@ -97,5 +97,5 @@ class PhaseDiagram(Widget):
     def render_line(self, y: int) -> Strip:
         lines = self._render_strips()
         width = self.size.width
-        line = lines[y] if y < len(lines) else Strip.blank(width)
+        line = lines[y] if y < len(lines) else Strip.blank(width, self.rich_style)
         return line.adjust_cell_length(width, self.rich_style)
