@@ -105,7 +105,7 @@ class MarginGauge(TextPanel):
             (label, ""),
             (number, "bold"),
             " ",
-            (bar(fraction, limit_fraction, bar_width), ABNORMAL if beyond else "dim"),
+            (bar(fraction, limit_fraction, bar_width), "bold" if beyond else "dim"),
             (tail, ABNORMAL if beyond and closing else ""),
         )
         if self.content_region.height >= 2:
