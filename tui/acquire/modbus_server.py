@@ -80,7 +80,8 @@ class RegisterServer:
         for kind, value in (("pressure", pressure_Pa), ("temperature", temperature_K)):
             register = self.profile.quantity(kind).register
             back = self._maps[kind]
-            for i, word in enumerate(encode(value * back.scale + back.offset, register.data_type, m.byte_order, m.word_order)):
+            raw = value * back.scale + back.offset
+            for i, word in enumerate(encode(raw, register.data_type, m.byte_order, m.word_order)):
                 words[register.address + i] = word
         self._words = words
 

@@ -36,12 +36,15 @@ class ModbusSource(Source):
         except ModuleNotFoundError:
             raise UsageError("Modbus needs pymodbus: pip install 'rigside[modbus]'") from None
         if profile.modbus is None:
-            raise UsageError(f"a Modbus source needs a profile with a [modbus] section and register addresses (profile: {profile.origin})")
+            raise UsageError(
+                f"a Modbus source needs a profile with a [modbus] section and register addresses (profile: {profile.origin})"
+            )
         self.profile, self.config = profile, profile.modbus
         url = urlsplit(spec)
         query = parse_qs(url.query)
         try:
-            self.unit = int(query["unit"][0]) if "unit" in query else (options.modbus_unit if options.modbus_unit is not None else self.config.unit)
+            default = options.modbus_unit if options.modbus_unit is not None else self.config.unit
+            self.unit = int(query["unit"][0]) if "unit" in query else default
         except ValueError:
             raise UsageError(f"{spec}: unit must be a whole number") from None
         self.channels = {}
@@ -70,7 +73,10 @@ class ModbusSource(Source):
             where = device
         self.counters = Counters()
         self.where = f"modbus {where}"
-        self.description = f"Modbus {url.scheme[7:].upper()} {where} unit {self.unit}, every {self.config.interval_s:g} s, profile {profile.name}"
+        self.description = (
+            f"Modbus {url.scheme[7:].upper()} {where} unit {self.unit}, every {self.config.interval_s:g} s, "
+            f"profile {profile.name}"
+        )
         if not self.client.connect():
             raise UsageError(f"cannot connect to {spec}")
 
@@ -117,7 +123,8 @@ class ModbusSource(Source):
             reply = read(register.address, count=register.count, device_id=self.unit)
             prefix = "hr" if register.kind == "holding" else "ir"
             if reply.isError():
-                problems.append(f"{kind} register {prefix}{register.address}: Modbus exception {getattr(reply, 'exception_code', '?')}")
+                code = getattr(reply, "exception_code", "?")
+                problems.append(f"{kind} register {prefix}{register.address}: Modbus exception {code}")
                 values[kind] = currents[kind] = math.nan
                 continue
             words = list(reply.registers)

@@ -55,7 +55,8 @@ def add_table_arguments(group) -> None:
 
     group.add_argument("--pressure-unit", metavar="UNIT", help="unit of pressures given without one, e.g. bar, psig, kPa(g)")
     group.add_argument("--temperature-unit", metavar="UNIT", help="unit of temperatures given without one, e.g. degC, K")
-    group.add_argument("--gauge", action="store_true", default=None, help="bare pressure units are gauge (read against --atmosphere)")
+    group.add_argument("--gauge", action="store_true", default=None,
+                       help="bare pressure units are gauge (read against --atmosphere)")
     group.add_argument("--atmosphere", dest="atmosphere_Pa", type=parse_atmosphere, metavar="P",
                        help="local atmosphere for gauge pressures, e.g. '1008 hPa' (default 101325 Pa)")
     group.add_argument("--time-column", metavar="NAME", help="time column of a CSV file")
@@ -68,7 +69,8 @@ def add_source_arguments(parser: argparse.ArgumentParser) -> None:
     group = parser.add_argument_group("source")
     group.add_argument("--profile", metavar="FILE", help="gauge profile (TOML); default: the generic line format")
     add_table_arguments(group)
-    group.add_argument("--baud", dest="baudrate", type=int, metavar="N", help="serial baud rate (default: profile, else 9600)")
+    group.add_argument("--baud", dest="baudrate", type=int, metavar="N",
+                       help="serial baud rate (default: profile, else 9600)")
     group.add_argument("--bytesize", type=int, choices=(5, 6, 7, 8), help="serial data bits")
     group.add_argument("--parity", choices=("N", "E", "O", "M", "S"), help="serial parity")
     group.add_argument("--stopbits", type=float, choices=(1, 1.5, 2), help="serial stop bits")

@@ -58,7 +58,8 @@ class PairedSource(Source):
         self.unpaired = 0
         """Pressure samples that found no temperature within the tolerance."""
         self.description = (
-            f"pressure from {pressure.description}; temperature from {temperature.description}; paired within {tolerance_s:g} s"
+            f"pressure from {pressure.description}; temperature from {temperature.description}; "
+            f"paired within {tolerance_s:g} s"
         )
 
     @property

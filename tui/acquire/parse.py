@@ -206,7 +206,8 @@ class ProfileParser(_Parser):
             if problem:
                 out.append(self.malformed_sample(line, problem, t, t_wall))
             else:
-                out.append(Sample(t, t_wall, values[0], values[1], line, pressure_mA=currents[0], temperature_mA=currents[1]))
+                out.append(Sample(t, t_wall, values[0], values[1], line,
+                                  pressure_mA=currents[0], temperature_mA=currents[1]))
         return out
 
     def _read_regex(self, line: str) -> list | str:

@@ -160,10 +160,12 @@ def _number(origin: str, table: dict, key: str, default: float | None, where: st
 
 def _intervals(origin: str, faults: dict, key: str) -> tuple[tuple[float, float], ...]:
     value = faults.get(key, [])
-    ok = isinstance(value, list) and all(
-        isinstance(v, list) and len(v) == 2 and all(isinstance(x, int | float) and not isinstance(x, bool) and x >= 0 for x in v)
-        for v in value
-    )
+    def interval(v) -> bool:
+        return isinstance(v, list) and len(v) == 2 and all(
+            isinstance(x, int | float) and not isinstance(x, bool) and x >= 0 for x in v
+        )
+
+    ok = isinstance(value, list) and all(interval(v) for v in value)
     if not ok:
         _fail(origin, f"faults.{key} must be a list of [start_s, duration_s] pairs, got {value!r}")
     return tuple((float(a), float(b)) for a, b in value)

@@ -114,32 +114,46 @@ class _Track:
 
     def check(self, v: float, t: float, current_mA: float, stuck_after: float, min_dt: float) -> list:
         """(quality, reason) pairs for one value; empty when all is well."""
-        found = []
-        if current_mA == current_mA:  # a 4-20 mA loop
-            if current_mA < NE43_FAILURE_LOW or current_mA > NE43_FAILURE_HIGH:
-                found.append((Quality.FAILURE, f"{self.name} loop current {current_mA:.2f} mA outside 3.6..21 mA (NE 43 failure)"))
-            elif current_mA < NE43_RANGE_LOW or current_mA > NE43_RANGE_HIGH:
-                found.append((Quality.OUT_OF_SPECIFICATION, f"{self.name} loop current {current_mA:.2f} mA outside 3.8..20.5 mA (NE 43)"))
+        found = self._current(current_mA) if current_mA == current_mA else []  # only 4-20 mA loops
         if v != v or v in (math.inf, -math.inf):
-            found.append((Quality.FAILURE, f"{self.name} missing or not a number"))
-            return found
+            return found + [(Quality.FAILURE, f"{self.name} missing or not a number")]
         lim = self.limits
         if not lim.span[0] <= v <= lim.span[1]:
-            found.append((Quality.OUT_OF_SPECIFICATION, f"{self.name} {v:.6g} {lim.unit} outside span {lim.span[0]:.6g}..{lim.span[1]:.6g} {lim.unit}"))
+            low, high = lim.span
+            reason = f"{self.name} {v:.6g} {lim.unit} outside span {low:.6g}..{high:.6g} {lim.unit}"
+            found.append((Quality.OUT_OF_SPECIFICATION, reason))
         if lim.rate_limit != math.inf and self.last_t == self.last_t:
-            rate = abs(v - self.last_v) / max(t - self.last_t, min_dt)
-            if rate > lim.rate_limit:
-                agrees = self.rejected_t == self.rejected_t and abs(v - self.rejected_v) / max(t - self.rejected_t, min_dt) <= lim.rate_limit
-                if not agrees:
-                    self.rejected_t, self.rejected_v = t, v
-                    found.append((Quality.FAILURE, f"{self.name} spike: {rate:.3g} {lim.unit}/s beyond {lim.rate_limit:.3g} {lim.unit}/s"))
-                    return found
+            spike = self._spike(v, t, min_dt)
+            if spike:
+                return found + [spike]
         self.last_t, self.last_v, self.rejected_t = t, v, math.nan
         if abs(v - self.moved_v) > lim.resolution or self.moved_t != self.moved_t:
             self.moved_t, self.moved_v = t, v
         elif t - self.moved_t > stuck_after:
-            found.append((Quality.MAINTENANCE_REQUIRED, f"{self.name} stuck: no change beyond {lim.resolution:.3g} {lim.unit} for {t - self.moved_t:.0f} s"))
+            since = t - self.moved_t
+            found.append((Quality.MAINTENANCE_REQUIRED,
+                          f"{self.name} stuck: no change beyond {lim.resolution:.3g} {lim.unit} for {since:.0f} s"))
         return found
+
+    def _current(self, mA: float) -> list:
+        if mA < NE43_FAILURE_LOW or mA > NE43_FAILURE_HIGH:
+            return [(Quality.FAILURE, f"{self.name} loop current {mA:.2f} mA outside 3.6..21 mA (NE 43 failure)")]
+        if mA < NE43_RANGE_LOW or mA > NE43_RANGE_HIGH:
+            return [(Quality.OUT_OF_SPECIFICATION, f"{self.name} loop current {mA:.2f} mA outside 3.8..20.5 mA (NE 43)")]
+        return []
+
+    def _spike(self, v: float, t: float, min_dt: float) -> tuple | None:
+        """A failure verdict when v jumps from the last believed value faster than the limit,
+        unless it agrees with the sample rejected just before (a real step, seen twice)."""
+        limit = self.limits.rate_limit
+        rate = abs(v - self.last_v) / max(t - self.last_t, min_dt)
+        if rate <= limit:
+            return None
+        if self.rejected_t == self.rejected_t and abs(v - self.rejected_v) / max(t - self.rejected_t, min_dt) <= limit:
+            return None
+        self.rejected_t, self.rejected_v = t, v
+        unit = self.limits.unit
+        return (Quality.FAILURE, f"{self.name} spike: {rate:.3g} {unit}/s beyond {limit:.3g} {unit}/s")
 
 
 class Validator:

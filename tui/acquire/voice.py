@@ -25,7 +25,8 @@ class Voice:
             pu, tu = scenario.pressure_unit, scenario.temperature_unit
             self._p = pu.from_si
             self._T = tu.from_si
-            self._template = f"p={{pressure:.6g}} {_plain(pu.label if pu.is_gauge else pu.symbol)} T={{temperature:.3f}} {_plain(tu.symbol)}"
+            p_unit = _plain(pu.label if pu.is_gauge else pu.symbol)
+            self._template = f"p={{pressure:.6g}} {p_unit} T={{temperature:.3f}} {_plain(tu.symbol)}"
         else:
             self._template = self._profile_template(self.profile)
             self._p = self._from_si("pressure")

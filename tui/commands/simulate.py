@@ -30,10 +30,12 @@ def add_parser(subparsers) -> None:
     where = parser.add_mutually_exclusive_group()
     where.add_argument("--pty", action="store_true", help="speak on a new pseudo-terminal (the default)")
     where.add_argument("--tcp", type=int, metavar="PORT", help="listen on 127.0.0.1:PORT (0: any free port)")
-    parser.add_argument("--profile", metavar="FILE", help="speak this gauge profile's protocol (its emit template, poll or Modbus registers)")
+    parser.add_argument("--profile", metavar="FILE",
+                        help="speak this gauge profile's protocol (its emit template, poll or Modbus registers)")
     parser.add_argument("--device", choices=("pressure", "temperature"),
                         help="with a two-device profile: which of its devices to play")
-    parser.add_argument("--speed", type=float, default=1.0, metavar="X", help="playback speed (default 1; 0: as fast as the reader takes it)")
+    parser.add_argument("--speed", type=float, default=1.0, metavar="X",
+                        help="playback speed (default 1; 0: as fast as the reader takes it)")
     parser.add_argument("--loop", action="store_true", help="start again at the end, for ever")
 
 

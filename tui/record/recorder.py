@@ -52,7 +52,8 @@ def _row(reading, t0: float) -> str:
     if "," in alarms or '"' in alarms:
         alarms = '"' + alarms.replace('"', '""') + '"'
     return (
-        f"{s.t_monotonic - t0:.6f},{s.t_wall:.6f},{s.pressure_Pa:.10g},{s.temperature_K:.10g},{s.quality.value},{reading.phase},"
+        f"{s.t_monotonic - t0:.6f},{s.t_wall:.6f},{s.pressure_Pa:.10g},{s.temperature_K:.10g},"
+        f"{s.quality.value},{reading.phase},"
         f"{m.get('dT_saturation_K', NAN):.7g},{m.get('dp_saturation_Pa', NAN):.7g},{m.get('dT_solid_K', NAN):.7g},"
         f"{m.get('critical_distance', NAN):.7g},{alarms},{reasons},\"{raw}\"\n"
     )
@@ -155,16 +156,17 @@ class RunRecorder:
         if report.state == "disconnected" and self._lost_at is None:
             self._lost_at = t_s
         elif report.state == "connected" and self._lost_at is not None:
-            lines.append(EVENT_PREFIX + _json_line(
-                {"t_s": t_s, "t_wall": report.t_wall, "kind": "gap", "from_t_s": self._lost_at, "duration_s": t_s - self._lost_at}
-            ))
+            gap = {"t_s": t_s, "t_wall": report.t_wall, "kind": "gap", "from_t_s": self._lost_at,
+                   "duration_s": t_s - self._lost_at}
+            lines.append(EVENT_PREFIX + _json_line(gap))
             self._lost_at = None
         self._put("\n".join(lines) + "\n", 0)
 
     def write_note(self, text: str, t_s: float | None = None) -> None:
         """A person's note, at `t_s` or at the last sample written."""
         t = self._last_t_s if t_s is None else t_s
-        self._put(EVENT_PREFIX + _json_line({"t_s": t, "t_wall": time.time(), "kind": "note", "message": str(text)}) + "\n", 0)
+        note = {"t_s": t, "t_wall": time.time(), "kind": "note", "message": str(text)}
+        self._put(EVENT_PREFIX + _json_line(note) + "\n", 0)
 
     def close(self) -> None:
         """Flush, fsync and close (idempotent)."""
@@ -203,7 +205,9 @@ class RunRecorder:
             target.parent.mkdir(parents=True, exist_ok=True)
             return self._open_part(target, 1)
         except FileExistsError:
-            raise UsageError(f"run log {target} exists; rigside never overwrites a log: give a new name or a directory") from None
+            raise UsageError(
+                f"run log {target} exists; rigside never overwrites a log: give a new name or a directory"
+            ) from None
         except OSError as exc:
             raise UsageError(f"cannot create run log {target}: {exc.strerror}") from None
 

@@ -35,7 +35,10 @@ from tui.record.recorder import COLUMNS, EVENT_PREFIX, FORMAT_LINE, META_PREFIX
 
 #: rows parsed per numpy call before bisection takes over
 BLOCK = 1 << 16
-RUN_LOG_NUMBERS = ("t_s", "t_wall", "pressure_Pa", "temperature_K", "dT_saturation_K", "dp_saturation_Pa", "dT_solid_K", "critical_distance")
+RUN_LOG_NUMBERS = (
+    "t_s", "t_wall", "pressure_Pa", "temperature_K",
+    "dT_saturation_K", "dp_saturation_Pa", "dT_solid_K", "critical_distance",
+)
 RUN_LOG_TEXTS = ("quality", "phase", "active_alarms", "reasons", "raw")
 DEFAULT_TEXTS = ("quality", "phase", "active_alarms")
 
@@ -426,7 +429,8 @@ def _columns(rows, usecols, dtype, delimiter, good, numbers, names, bad) -> np.n
         try:
             with warnings.catch_warnings():  # a block of blank lines "contains no data"
                 warnings.simplefilter("ignore", UserWarning)
-                block = np.loadtxt(rows[a:b], delimiter=delimiter, quotechar='"', usecols=usecols, dtype=dtype, ndmin=2, comments=None)
+                block = np.loadtxt(rows[a:b], delimiter=delimiter, quotechar='"', usecols=usecols, dtype=dtype,
+                                   ndmin=2, comments=None)
             if len(block) == b - a:
                 pieces.append(block)
                 return
