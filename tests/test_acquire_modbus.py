@@ -10,6 +10,7 @@ from tui.acquire.modbus_server import RegisterServer
 from tui.acquire.profile import load_profile
 from tui.acquire.registers import decode, encode
 from tui.acquire.sample import Sample, SourceStatus
+from tui.acquire.simulator import NullModem
 from tui.errors import UsageError
 
 PROFILE = "fixtures/profiles/modbus-transmitter.toml"
@@ -72,3 +73,42 @@ def test_modbus_needs_a_profile_with_registers_and_a_reachable_device():
         open_source("modbus-tcp://127.0.0.1:1")
     with pytest.raises(UsageError, match="cannot connect to modbus-tcp://127.0.0.1:1"):
         open_source("modbus-tcp://127.0.0.1:1", SourceOptions(profile=PROFILE))
+
+
+def test_modbus_rtu_over_a_null_modem():
+    modem = NullModem()
+    server = RegisterServer(load_profile(PROFILE), device=modem.device_end)
+    try:
+        server.update(12.5e5, 253.15)
+        source = open_source(f"modbus-rtu://{modem.address}", SourceOptions(profile=PROFILE))
+        assert source.description.startswith(f"Modbus RTU {modem.address} unit 7")
+        stop = threading.Event()
+        for item in source.iter(stop):
+            if isinstance(item, Sample):
+                stop.set()
+    finally:
+        server.close()
+        modem.close()
+    assert item.pressure_Pa == pytest.approx(12.5e5) and item.temperature_K == pytest.approx(253.15)
+
+
+def test_simulate_serves_modbus_rtu_on_a_pty():
+    import os
+    import subprocess
+    import sys
+
+    child = subprocess.Popen([sys.executable, "-m", "tui.cli", "simulate", "view-cell", "--speed", "20", "--profile", PROFILE],
+                             stdout=subprocess.PIPE, text=True, env=os.environ | {"PYTHONPATH": os.getcwd()})
+    try:
+        address = child.stdout.readline().strip()
+        assert address.startswith("modbus-rtu:///dev/pts/")
+        stop, got = threading.Event(), []
+        for item in open_source(address, SourceOptions(profile=PROFILE)).iter(stop):
+            if isinstance(item, Sample):
+                got.append(item)
+                if len(got) == 3:
+                    stop.set()
+    finally:
+        child.terminate()
+        child.wait(5)
+    assert all(0.9e5 < s.pressure_Pa < 1e7 and 290 < s.temperature_K < 300 for s in got)

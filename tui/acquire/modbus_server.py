@@ -15,16 +15,17 @@ from tui.acquire.options import SourceOptions
 from tui.acquire.parse import quantity_channel
 from tui.acquire.profile import GaugeProfile
 from tui.acquire.registers import encode
+from tui.acquire.serial_source import serial_settings
 from tui.errors import UsageError
 
 logging.getLogger("pymodbus").setLevel(logging.CRITICAL)
 
 
 class RegisterServer:
-    """Serves a profile's registers on HOST:PORT (port 0 picks a free one: see `port`)."""
+    """Serves a profile's registers over Modbus TCP on HOST:PORT (port 0 picks a free one: see
+    `port`), or over Modbus RTU on the serial `device` (settings from the profile)."""
 
-    def __init__(self, profile: GaugeProfile, host: str = "127.0.0.1", port: int = 0):
-        from pymodbus.server import ModbusTcpServer
+    def __init__(self, profile: GaugeProfile, host: str = "127.0.0.1", port: int = 0, *, device: str | None = None):
         from pymodbus.simulator import DataType, SimData, SimDevice
 
         if profile.modbus is None:
@@ -38,31 +39,44 @@ class RegisterServer:
             self._maps[kind] = channel.to_si.inverse()
         top = max(q.register.address + q.register.count for q in (profile.pressure, profile.temperature))
         self._words: dict[int, int] = {}
-        device = SimDevice(
+        self._simulated = SimDevice(
             id=profile.modbus.unit,
             simdata=[SimData(0, count=top + 1, values=0, datatype=DataType.REGISTERS)],
             action=self._serve,
         )
+        self.port: int | None = None
+        self._where = device or f"{host}:{port}"
         self._ready = threading.Event()
-        self._host, self._requested_port = host, port
-        self._server_class, self._device = ModbusTcpServer, device
-        self._thread = threading.Thread(target=lambda: asyncio.run(self._main()), name="modbus-server", daemon=True)
+        self._failure = "no answer within 10 s"
+        serve = lambda: asyncio.run(self._main(host, port, device))  # noqa: E731
+        self._thread = threading.Thread(target=serve, name="modbus-server", daemon=True)
         self._thread.start()
-        if not self._ready.wait(10) or self.port is None:
-            raise UsageError(f"cannot serve Modbus on {host}:{port}: {getattr(self, '_failure', 'timeout')}")
+        if not self._ready.wait(10) or self._server is None:
+            raise UsageError(f"cannot serve Modbus on {self._where}: {self._failure}")
 
-    async def _main(self) -> None:
-        self.port = None
+    def _make_server(self, host: str, port: int, device: str | None):
+        from pymodbus import FramerType
+        from pymodbus.server import ModbusSerialServer, ModbusTcpServer
+
+        if device is None:
+            return ModbusTcpServer(self._simulated, address=(host, port))
+        settings = serial_settings(self.profile, SourceOptions())
+        return ModbusSerialServer(self._simulated, framer=FramerType.RTU, port=device, **settings)
+
+    async def _main(self, host: str, port: int, device: str | None) -> None:
+        self._server, serving = None, None
         self._loop = asyncio.get_running_loop()
         try:
-            self._server = self._server_class(self._device, address=(self._host, self._requested_port))
-            serving = asyncio.ensure_future(self._server.serve_forever())
-            while self._server.transport is None and not serving.done():
+            server = self._make_server(host, port, device)
+            serving = asyncio.ensure_future(server.serve_forever())
+            while server.transport is None and not serving.done():
                 await asyncio.sleep(0.01)
-            self.port = self._server.transport.sockets[0].getsockname()[1] if self._server.transport else None
+            if server.transport is not None:
+                self._server = server
+                sockets = getattr(server.transport, "sockets", None)
+                self.port = sockets[0].getsockname()[1] if sockets else None
         except OSError as exc:
-            self._failure = exc.strerror
-            serving = None
+            self._failure = exc.strerror or str(exc)
         finally:
             self._ready.set()
         if serving is not None:
@@ -86,7 +100,7 @@ class RegisterServer:
         self._words = words
 
     def close(self) -> None:
-        if self.port is not None:
+        if self._server is not None:
             asyncio.run_coroutine_threadsafe(self._server.shutdown(), self._loop).result(5)
-            self.port = None
+            self._server = None
         self._thread.join(5)

@@ -64,6 +64,40 @@ class PtyOutlet:
         os.close(self.slave)
 
 
+class NullModem:
+    """Two pseudo-terminals wired back to back: what one end's program writes, the other's reads.
+
+    For a device program that opens a serial port itself (the Modbus RTU server): it opens
+    `device_end`, readers open `address`.
+    """
+
+    def __init__(self):
+        pairs = [os.openpty(), os.openpty()]
+        for _, slave in pairs:
+            tty.setraw(slave)
+        (self._a, self._a_slave), (self._b, self._b_slave) = pairs
+        self.device_end, self.address = os.ttyname(self._a_slave), os.ttyname(self._b_slave)
+        self._stop = threading.Event()
+        self._thread = threading.Thread(target=self._relay, name="null-modem", daemon=True)
+        self._thread.start()
+
+    def _relay(self) -> None:
+        other = {self._a: self._b, self._b: self._a}
+        while not self._stop.is_set():
+            ready, _, _ = select.select(list(other), [], [], WAKE_S)
+            for fd in ready:
+                try:
+                    os.write(other[fd], os.read(fd, 4096))
+                except OSError:
+                    return
+
+    def close(self) -> None:
+        self._stop.set()
+        self._thread.join(1)
+        for fd in (self._a, self._a_slave, self._b, self._b_slave):
+            os.close(fd)
+
+
 class TcpOutlet:
     """A TCP server on `host:port` (port 0: any free one); every connected client gets the stream."""
 
@@ -185,9 +219,12 @@ class Simulator:
         s = self.scenario
         k = 0
         while not stop.is_set() and (s.loop or k < s.samples):
-            if not self.pacer.wait_until(k / s.rate_hz, stop):
-                continue
-            frames = s.frames(k, k + 1)
-            if len(frames.t) and frames.kind[0] != SILENT:
-                server.update(float(frames.pressure_Pa[0]), float(frames.temperature_K[0]))
-            k += 1
+            if self.pacer.wait_until(k / s.rate_hz, stop):
+                self.set_registers(server, k)
+                k += 1
+
+    def set_registers(self, server, k: int) -> None:
+        """Put sample k's values in the registers (before serving starts, too)."""
+        frames = self.scenario.frames(k, k + 1)
+        if len(frames.t) and frames.kind[0] != SILENT:
+            server.update(float(frames.pressure_Pa[0]), float(frames.temperature_K[0]))

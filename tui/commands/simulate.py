@@ -1,7 +1,8 @@
 """`rigside simulate SCENARIO`: a virtual gauge on a pseudo-terminal or a TCP port.
 
-The first line on stdout is where to connect (a pty path, `socket://127.0.0.1:PORT`, or
-`modbus-tcp://127.0.0.1:PORT` for a Modbus profile), so scripts can start it and read one line.
+The first line on stdout is where to connect (a pty path, `socket://127.0.0.1:PORT`, or for a
+Modbus profile `modbus-rtu:///dev/pts/N` or `modbus-tcp://127.0.0.1:PORT`), so scripts can
+start it and read one line.
 """
 
 from __future__ import annotations
@@ -12,7 +13,7 @@ from dataclasses import replace
 
 from tui.acquire.profile import load_profile
 from tui.acquire.scenario import builtin_scenarios, load_scenario
-from tui.acquire.simulator import PtyOutlet, Simulator, TcpOutlet
+from tui.acquire.simulator import NullModem, PtyOutlet, Simulator, TcpOutlet
 from tui.cli import SAFETY_NOTE
 from tui.errors import UsageError
 
@@ -67,16 +68,26 @@ def run(args) -> int:
 
 
 def _serve_modbus(scenario, profile, args, stop: threading.Event) -> int:
+    """Modbus TCP with --tcp, else Modbus RTU on a pseudo-terminal (wired back to back)."""
     from tui.acquire.modbus_server import RegisterServer
 
-    if args.tcp is None:
-        raise UsageError("a Modbus profile is served over TCP: give --tcp PORT")
-    server = RegisterServer(profile, port=args.tcp)
-    print(f"modbus-tcp://127.0.0.1:{server.port}", flush=True)
+    modem = None
+    if args.tcp is not None:
+        server = RegisterServer(profile, port=args.tcp)
+        address = f"modbus-tcp://127.0.0.1:{server.port}"
+    else:
+        modem = NullModem()
+        server = RegisterServer(profile, device=modem.device_end)
+        address = f"modbus-rtu://{modem.address}"
+    simulator = Simulator(scenario, None, profile, args.speed)
+    simulator.set_registers(server, 0)
+    print(address, flush=True)
     try:
-        Simulator(scenario, None, profile, args.speed).serve_registers(server, stop)
+        simulator.serve_registers(server, stop)
     except KeyboardInterrupt:
         pass
     finally:
         server.close()
+        if modem is not None:
+            modem.close()
     return 0
