@@ -48,8 +48,8 @@ class RegisterServer:
         self._where = device or f"{host}:{port}"
         self._ready = threading.Event()
         self._failure = "no answer within 10 s"
-        serve = lambda: asyncio.run(self._main(host, port, device))  # noqa: E731
-        self._thread = threading.Thread(target=serve, name="modbus-server", daemon=True)
+        main = self._main(host, port, device)
+        self._thread = threading.Thread(target=asyncio.run, args=(main,), name="modbus-server", daemon=True)
         self._thread.start()
         if not self._ready.wait(10) or self._server is None:
             raise UsageError(f"cannot serve Modbus on {self._where}: {self._failure}")
