@@ -163,10 +163,13 @@ def _dwell(t: np.ndarray, threshold: float) -> tuple[np.ndarray, tuple[Gap, ...]
 def _phase_changes(t: np.ndarray, phase: np.ndarray) -> tuple[PhaseChange, ...]:
     """Every change between classified phases: a stretch of unclassified samples in between
     hides the state, so liquid, unclassified, liquid is no change."""
-    classified = np.flatnonzero(phase != UNCLASSIFIED)
-    starts, values = label_runs(phase[classified])
-    at = classified[starts[1:]]
-    return tuple(PhaseChange(float(t[i]), str(b), str(a)) for i, b, a in zip(at, values[:-1], values[1:]))
+    starts, values = label_runs(phase)
+    classified = values != UNCLASSIFIED
+    starts, values = starts[classified], values[classified]
+    new = np.ones(values.size, dtype=bool)
+    new[1:] = values[1:] != values[:-1]  # runs merged across the hidden stretches
+    starts, values = starts[new], values[new]
+    return tuple(PhaseChange(float(t[i]), str(b), str(a)) for i, b, a in zip(starts[1:], values[:-1], values[1:]))
 
 
 def _extremes(name: str, t: np.ndarray, values: np.ndarray) -> MarginExtremes:
