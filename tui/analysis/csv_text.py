@@ -101,7 +101,7 @@ def _number_field(values: np.ndarray, decimals: int) -> np.ndarray:
     units = np.where(fixed, np.rint(np.where(fixed, scaled, 0.0)), 0.0).astype(np.int64)
     width = max(decimals + 1, len(str(int(units.max()))) if units.size else 1)
     powers = 10 ** np.arange(width - 1, -1, -1, dtype=np.int64)
-    digits = ((units[:, None] // powers) % 10 + _DIGIT).astype(np.uint8)
+    digits = _digits(units, width)
     leading = (units[:, None] < powers) & (np.arange(width) < width - decimals - 1)
     digits[leading | ~fixed[:, None]] = _PAD
     sign = np.where(fixed & (values < 0) & (units > 0), ord("-"), _PAD).astype(np.uint8)[:, None]
@@ -111,6 +111,19 @@ def _number_field(values: np.ndarray, decimals: int) -> np.ndarray:
         parts += [point, digits[:, width - decimals :]]
     field = _with_nan(np.hstack(parts), np.isnan(values))
     return _with_exponent_form(field, values, fixed)
+
+
+def _digits(units: np.ndarray, width: int) -> np.ndarray:
+    """ASCII decimal digits of non-negative integers, `width` columns, most significant first.
+    One division by the scalar 10 per column (numpy divides by a scalar far faster than by
+    an array of powers of ten)."""
+    digits = np.empty((units.size, width), dtype=np.uint8)
+    rest = units
+    for column in range(width - 1, -1, -1):
+        quotient = rest // 10
+        digits[:, column] = rest - quotient * 10 + _DIGIT
+        rest = quotient
+    return digits
 
 
 def _with_nan(field: np.ndarray, undefined: np.ndarray) -> np.ndarray:
