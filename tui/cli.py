@@ -44,14 +44,7 @@ def build_parser(available: dict[str, object]) -> argparse.ArgumentParser:
 
 
 def _load_commands() -> dict[str, object]:
-    modules = {}
-    for name, module_name in COMMANDS.items():
-        try:
-            modules[name] = importlib.import_module(f"tui.commands.{module_name}")
-        except ModuleNotFoundError as exc:
-            if exc.name != f"tui.commands.{module_name}":
-                raise
-    return modules
+    return {name: importlib.import_module(f"tui.commands.{module}") for name, module in COMMANDS.items()}
 
 
 def main(argv: list[str] | None = None) -> int:
