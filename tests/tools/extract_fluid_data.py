@@ -161,7 +161,7 @@ def extract(key: str) -> dict:
     return {
         "key": key,
         "name": name,
-        "aliases": sorted({key, *aliases, *raw["INFO"]["ALIASES"]}, key=str.lower),
+        "aliases": sorted({key, *aliases, *raw["INFO"]["ALIASES"]}, key=lambda s: (s.lower(), s)),
         "cas": raw["INFO"]["CAS"],
         "molar_mass": M, "molar_mass_unit": "kg/mol",
         "acentric_factor": eos["acentric"],
