@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 import threading
 import time
+from collections.abc import Callable
 
 from tui.acquire.source import WAKE_S
 
@@ -125,6 +126,18 @@ class Pacer:
             if self._paused or self._speed == math.inf:
                 return self.position
             return self._origin_play + (time.monotonic() - self._origin_real) * self._speed
+
+    def batch_end(self, i: int, most: int, index_due: Callable[[float], int]) -> int:
+        """End (exclusive) of the batch to hand out from item i, once `wait_until` let item i through.
+
+        One item while paused (a step), `most` as fast as possible, else the items due by now
+        (at least one, at most `most`); `index_due(t)` is the index after the last item due at t.
+        """
+        if self.paused:
+            return i + 1
+        if self.speed == math.inf:
+            return i + most
+        return max(i + 1, min(index_due(self.due_now()), i + most))
 
 
 class Playback:

@@ -18,6 +18,7 @@ from tui.acquire.options import SourceOptions
 from tui.acquire.profile import GaugeProfile, Quantity
 from tui.acquire.sample import Quality, Sample
 from tui.acquire.units import LinearMap, pressure_map, temperature_map
+from tui.errors import UsageError
 
 NAN = math.nan
 #: raw text kept of a malformed line
@@ -241,12 +242,10 @@ class ProfileParser(_Parser):
 
 def make_parser(profile: GaugeProfile, options: SourceOptions, role: str | None = None) -> GenericParser | ProfileParser:
     """The parser a profile asks for; a profile quantity without a unit is a `UsageError`."""
-    from tui.errors import UsageError
-
     if profile.is_generic:
         return GenericParser(options, role)
     parser = ProfileParser(profile, options, role)
-    for kind, channel in parser.channels.items():
+    for channel in parser.channels.values():
         if isinstance(channel, str):
             raise UsageError(f"profile {profile.origin}: {channel}")
     return parser

@@ -74,12 +74,7 @@ class ReplaySource(Playback, Source):
                 if self.pacer.paused:
                     yield [self._status("paused", f"paused at {self.position:.1f} s")]
                 continue
-            if self.pacer.paused:
-                j = i + 1
-            elif self.pacer.speed == math.inf:
-                j = min(i + BATCH, n)
-            else:
-                j = max(i + 1, min(int(np.searchsorted(t, self.pacer.due_now(), "right")), i + BATCH))
+            j = min(self.pacer.batch_end(i, BATCH, lambda now: int(np.searchsorted(t, now, "right"))), n)
             yield self._samples(i, j)
             self.pacer.position = float(t[j - 1])
             i = j

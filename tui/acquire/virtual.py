@@ -63,12 +63,7 @@ class VirtualGauge(Playback, Source):
                 if self.pacer.paused:
                     yield [self._status("paused", f"paused at {self.position:.1f} s")]
                 continue
-            if self.pacer.paused:
-                j = k + 1
-            elif self.pacer.speed == math.inf:
-                j = k + BATCH
-            else:
-                j = max(k + 1, min(int(self.pacer.due_now() * rate) + 1, k + BATCH))
+            j = self.pacer.batch_end(k, BATCH, lambda now: int(now * rate) + 1)
             batch = self._play(k, j)
             k = j
             self.pacer.position = (k - 1) / rate

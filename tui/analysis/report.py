@@ -10,7 +10,7 @@ import base64
 import html
 import re
 from dataclasses import dataclass, field
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
 from tui.analysis.figures import png_bytes, svg_text
@@ -52,7 +52,7 @@ def report_format(path: Path) -> str:
 def write_report(path: Path, runs: list[RunPart], *, comparison: Table | None = None, notes: tuple[str, ...] = ()) -> None:
     """Write the report; notes are lines shown under the title (e.g. configurations used)."""
     form = _Html if report_format(path) == "html" else _Markdown
-    stamp = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    stamp = datetime.now(UTC).strftime("%Y-%m-%d %H:%M UTC")
     parts = [form.heading(1, "rigside analysis")]
     parts += [form.note(line) for line in (f"Written {stamp} by rigside analyze.", *notes, SAFETY_NOTE)]
     if comparison is not None:
