@@ -18,12 +18,10 @@ from tui.analysis.display import Units
 from tui.analysis.run import AnalysedRun
 from tui.errors import RuntimeFailure
 from tui.monitor.model import MARGINS
-from tui.screen.curves import Curve, fluid_curves
+from tui.screen.curves import fluid_curves
 
 #: points drawn per series at most (about twice the pixels across a figure)
 MAX_POINTS = 4000
-#: points of the melting curve, log-spaced in pressure
-MELTING_POINTS = 400
 #: figure formats written by `save`
 FORMATS = ("png", "svg")
 
@@ -85,7 +83,7 @@ def trajectory_figure(run: AnalysedRun, fluid, units: Units):
     figure = Figure(figsize=(7.5, 5.5), layout="constrained")
     axes = figure.add_subplot()
     p, T = units.pressure.from_si, units.temperature.from_si
-    for name, curve in (("saturation", curves.saturation), ("melting", _melting(fluid, curves)), ("sublimation", curves.sublimation)):
+    for name, curve in (("saturation", curves.saturation), ("melting", curves.melting), ("sublimation", curves.sublimation)):
         axes.plot(T(curve.T), p(curve.p), label=f"{name} curve", linewidth=1.2)
     axes.plot(T(curves.T_critical), p(curves.p_critical), "o", label="critical point")
     axes.plot(T(curves.T_triple), p(curves.p_triple), "^", label="triple point")
@@ -99,16 +97,6 @@ def trajectory_figure(run: AnalysedRun, fluid, units: Units):
     _frame_run(axes, run, units, curves)
     axes.legend(loc="best", fontsize="small")
     return figure
-
-
-def _melting(fluid, curves) -> Curve:
-    """The melting curve sampled by pressure from the triple point up: it rises almost
-    vertically (and turns back for ice Ih), so a grid in temperature would miss its foot."""
-    p = np.geomspace(curves.p_triple, curves.p_range[1], MELTING_POINTS)
-    with np.errstate(all="ignore"):
-        T = np.asarray(fluid.melting_temperature(p), dtype=float)
-    defined = np.isfinite(T)
-    return Curve(T[defined], p[defined])
 
 
 def _frame_run(axes, run: AnalysedRun, units: Units, curves) -> None:

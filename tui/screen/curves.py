@@ -60,6 +60,18 @@ def _finite_within(curve: Curve, p_low: float, p_high: float) -> Curve:
     return Curve(curve.T[keep], curve.p[keep])
 
 
+def melting_curve(fluid, p_low: float, p_high: float, points: int = _CURVE_POINTS) -> Curve:
+    """The melting curve between `p_low` and `p_high` [Pa], sampled log-evenly in pressure.
+
+    It rises almost vertically from the triple point (and turns back to colder for ice Ih),
+    so a grid in temperature would miss its foot; the temperature is single-valued in p."""
+    p = np.geomspace(p_low, p_high, points)
+    with np.errstate(all="ignore"):
+        T = np.asarray(fluid.melting_temperature(p), dtype=float)
+    defined = np.isfinite(T)
+    return Curve(T[defined], p[defined])
+
+
 def fluid_curves(fluid) -> FluidCurves:
     """Sample the boundaries of a `thermo` fluid over the whole-range view."""
     Tc, pc = fluid.critical.T, fluid.critical.p
@@ -71,10 +83,6 @@ def fluid_curves(fluid) -> FluidCurves:
         saturation = Curve(T_sat, np.asarray(fluid.saturation_pressure(T_sat), dtype=float))
         T_sub = np.linspace(T_range[0], Tt, _CURVE_POINTS)
         sublimation = Curve(T_sub, np.asarray(fluid.sublimation_pressure(T_sub), dtype=float))
-        # The melting curve may run to lower temperatures than the triple point (ice Ih), so
-        # sample it over the whole span and keep what lies above the triple pressure.
-        T_melt = np.linspace(T_range[0], T_range[1], 4 * _CURVE_POINTS)
-        melting = Curve(T_melt, np.asarray(fluid.melting_pressure(T_melt), dtype=float))
         rho_liquid, rho_vapor = fluid.saturated_densities(T_sat)
     return FluidCurves(
         name=fluid.name,
@@ -85,7 +93,7 @@ def fluid_curves(fluid) -> FluidCurves:
         p_triple=pt,
         saturation=saturation,
         sublimation=_finite_within(sublimation, p_range[0], pt),
-        melting=_finite_within(melting, pt, p_range[1]),
+        melting=melting_curve(fluid, pt, p_range[1]),
         dome_v_liquid=1.0 / np.asarray(rho_liquid, dtype=float),
         dome_v_vapor=1.0 / np.asarray(rho_vapor, dtype=float),
         T_range=T_range,
