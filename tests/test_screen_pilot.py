@@ -23,6 +23,7 @@ from tui.screen.widgets.live_readout import LiveReadout
 from tui.screen.widgets.margin_gauge import MarginGauge
 from tui.screen.widgets.phase_banner import PhaseBanner
 from tui.screen.widgets.phase_diagram import PhaseDiagram
+from tui.screen.widgets.property_table import PropertyTable
 
 CO2 = thermo.fluid("CO2")
 SIZE = (100, 30)
@@ -72,6 +73,21 @@ async def test_liquid_shows_its_phase_and_subcooling_from_thermo():
         readout = screen.query_one(LiveReadout).text
         assert "10.00 °C" in readout and "bar(a)" in readout
         assert "no alarms" in screen.query_one(AlarmList).text
+        density = format_number(float(CO2.density(T, p)), 4)
+        assert f"ρ {density} kg/m³" in " ".join(screen.query_one(PropertyTable).text.split())
+
+
+async def test_on_the_vapor_pressure_curve_both_saturated_densities_are_shown():
+    T = 283.15
+    states = steady(T, float(CO2.saturation_pressure(T)))
+    async with shown(states) as (app, pilot):
+        assert app.screen.query_one(PhaseBanner).phase == "liquid+vapor"
+        table = " ".join(app.screen.query_one(PropertyTable).text.split())
+        rho_liquid, rho_vapor = CO2.saturated_densities(T)
+        assert "two-phase" in table
+        assert f"ρ' {format_number(float(rho_liquid), 4)} kg/m³" in table
+        assert f"ρ'' {format_number(float(rho_vapor), 4)} kg/m³" in table
+        assert "Z " not in table  # no single-phase value that belongs to one branch only
 
 
 async def test_near_saturation_alarms_and_the_keys_acknowledge_and_shelve_it():

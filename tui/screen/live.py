@@ -66,7 +66,8 @@ class LiveView:
     dropped: int = 0
     malformed: int = 0
     properties: Mapping[str, float] = field(default_factory=dict)
-    """thermo properties at the live state (density, molar_volume, Z, alpha_p, kappa_T, cp, speed_of_sound)."""
+    """thermo properties at the live state (density, molar_volume, Z, alpha_p, kappa_T, cp, speed_of_sound),
+    or on the liquid–vapor curve the saturated densities (rho_liquid, rho_vapor)."""
     isotherm: Isotherm | None = None
     recording: Recording | None = None
     replay: ReplayPosition | None = None

@@ -33,6 +33,8 @@ ISOTHERM_PRESSURE_ROOM = 3.0
 RECORDING_SIZE_HZ = 1.0
 #: properties shown at the live state
 SHOWN_PROPERTIES = ("density", "molar_volume", "Z", "alpha_p", "kappa_T", "cp", "speed_of_sound")
+#: the phase label on the liquid–vapor curve, where the saturated densities are shown instead
+TWO_PHASE = "liquid+vapor"
 
 
 class ReplayControl:
@@ -92,11 +94,14 @@ class Session:
     """Owns the source, the monitor and the recorder of one screen run."""
 
     def __init__(self, source, config, *, make_monitor: Callable, recorder=None, label: str = "",
-                 clock: Callable[[], float] = time.monotonic, stale_clock: Callable[[], float] | None = None) -> None:
+                 clock: Callable[[], float] = time.monotonic, stale_clock: Callable[[], float] | None = None,
+                 sinks=()) -> None:
         """`make_monitor(config)` builds a monitor (again on a fluid switch); `clock` tells the
         samples' age (tests freeze it); `stale_clock` is "now" on the samples' clock for the
-        monitor's stale check (None for replays and the virtual gauge, which keep their own time)."""
+        monitor's stale check (None for replays and the virtual gauge, which keep their own time);
+        `sinks` get every batch after the screen (the caller owns and closes them)."""
         self.source = source
+        self._sinks = tuple(sinks)
         self.config = config
         self.clock = clock
         self._stale_clock = stale_clock
@@ -128,7 +133,7 @@ class Session:
         """Run the live loop until the source ends or `stop()`; `publish` gets every new view."""
         self._publish = publish
         self._finished.clear()
-        sinks = ([RecorderSink(self.recorder)] if self.recorder is not None else []) + [_ScreenSink(self)]
+        sinks = ([RecorderSink(self.recorder)] if self.recorder is not None else []) + [_ScreenSink(self), *self._sinks]
         try:
             run_live(self.source, _SwitchableMonitor(self), sinks, self._stop, clock=self._stale_clock)
         finally:
@@ -189,13 +194,21 @@ class Session:
         if not (math.isfinite(T) and math.isfinite(p)):
             return
         if self._due("properties", PROPERTY_HZ):
-            values = self.fluid.properties(T, p)
-            self.feed.update(properties={key: float(values[key]) for key in SHOWN_PROPERTIES})
+            self.feed.update(properties=self._properties(reading.phase, T, p))
         last = self.feed.view.isotherm
         if (last is None or abs(last.T - T) > ISOTHERM_STEP_K) and self._due("isotherm", ISOTHERM_HZ):
             critical, triple = self.fluid.critical, self.fluid.triple
             p_range = (triple.p / ISOTHERM_PRESSURE_ROOM, critical.p * ISOTHERM_PRESSURE_ROOM)
             self.feed.update(isotherm=isotherm(self.fluid, T, p_range))
+
+    def _properties(self, phase: str, T: float, p: float) -> dict[str, float]:
+        """The single-phase properties at (T, p); on the liquid–vapor curve, where either branch's
+        density would be a guess, the saturated liquid and vapor densities at T instead."""
+        if phase == TWO_PHASE and self.fluid.triple.T <= T < self.fluid.critical.T:
+            rho_liquid, rho_vapor = self.fluid.saturated_densities(T)
+            return {"rho_liquid": float(rho_liquid), "rho_vapor": float(rho_vapor)}
+        values = self.fluid.properties(T, p)
+        return {key: float(values[key]) for key in SHOWN_PROPERTIES}
 
     # ------------------------------------------------------------ operator commands (screen thread)
     def acknowledge(self, condition: str) -> None:

@@ -36,8 +36,17 @@ def property_lines(properties: Mapping[str, float], columns: int) -> list[str]:
             for r in range(rows)]
 
 
+def two_phase_lines(properties: Mapping[str, float], columns: int) -> list[str]:
+    """The saturated liquid (ρ') and vapor (ρ'') densities, under a line that says why."""
+    entries = [f"{symbol:<3} {format_number(properties[key], 4):>6} kg/m³"
+               for symbol, key in (("ρ'", "rho_liquid"), ("ρ''", "rho_vapor"))]
+    rows = ["  ".join(entries)] if columns > 1 else entries
+    return ["two-phase: saturated liquid and vapor", *rows]
+
+
 class PropertyTable(TextPanel):
-    """Density, molar volume, Z, αp, κT, cp and the speed of sound; wraps to fit the width."""
+    """Density, molar volume, Z, αp, κT, cp and the speed of sound, wrapped to fit the width;
+    on the liquid–vapor curve the two saturated densities instead."""
 
     DEFAULT_CSS = """
     PropertyTable { height: auto; }
@@ -46,4 +55,5 @@ class PropertyTable(TextPanel):
     def show(self, properties: Mapping[str, float]) -> None:
         width = self.content_region.width or 40
         columns = 3 if width >= 60 else 2 if width >= 34 else 1
-        self.put(Content("\n".join(property_lines(properties, columns))))
+        lines = (two_phase_lines if "rho_liquid" in properties else property_lines)(properties, columns)
+        self.put(Content("\n".join(lines)))
