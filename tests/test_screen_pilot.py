@@ -125,8 +125,10 @@ async def test_diagram_keys_switch_view_and_zoom():
     async with shown(steady(T, p, 4)) as (app, pilot):
         diagram = app.screen.query_one(PhaseDiagram)
         assert diagram.border_title.startswith("p–T") and "●" in diagram.text
+        assert "▲ triple" in diagram.border_subtitle and "▲" in diagram.text
         await pilot.press("d")
         assert diagram.border_title.startswith("p–v")
+        assert "triple" not in diagram.border_subtitle and "▲" not in diagram.text  # the legend lists what is drawn
         await pilot.press("z")
         assert "near now" in diagram.border_title
         assert "●" in diagram.text

@@ -32,7 +32,11 @@ INK_ROLES = {
 NOW_GLYPH = "●"
 CRITICAL_GLYPH = "◆"
 TRIPLE_GLYPH = "▲"
-LEGEND = f"{NOW_GLYPH} now  {CRITICAL_GLYPH} critical  {TRIPLE_GLYPH} triple  ⠒ curve  ⠁ band"
+#: view -> what its symbols mean (only the symbols that view draws)
+LEGENDS = {
+    "pT": f"{NOW_GLYPH} now  {CRITICAL_GLYPH} critical  {TRIPLE_GLYPH} triple  ⠒ curve  ⠁ band",
+    "pv": f"{NOW_GLYPH} now  {CRITICAL_GLYPH} critical  ⠒ dome and isotherm",
+}
 
 #: columns kept left of the plot for pressure labels
 GUTTER = 7

@@ -11,7 +11,7 @@ from textual.strip import Strip
 from textual.widget import Widget
 
 from tui.screen.curves import FluidCurves
-from tui.screen.plot import INK_ROLES, LEGEND, DiagramState, draw
+from tui.screen.plot import INK_ROLES, LEGENDS, DiagramState, draw
 
 VIEW_TITLES = {"pT": "p–T", "pv": "p–v"}
 ZOOM_TITLES = {"whole": "whole range", "near": "near now"}
@@ -65,7 +65,7 @@ class PhaseDiagram(Widget):
 
     def _update_titles(self) -> None:
         self.border_title = f"{VIEW_TITLES[self.view]} · {ZOOM_TITLES[self.zoom]}"
-        self.border_subtitle = LEGEND
+        self.border_subtitle = LEGENDS[self.view]
 
     @property
     def drawn(self) -> bool:
