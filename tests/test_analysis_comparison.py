@@ -42,9 +42,9 @@ def test_one_row_per_run_with_the_same_columns():
     assert [r["run"] for r in rows] == ["a.csv", "b.csv"]
     assert rows[0]["phase changes"] == "2" and rows[1]["phase changes"] == "0"
     assert rows[0]["main phases"] == "liquid 50.0 %, liquid+vapor 25.0 %, vapor 25.0 %"  # ties alphabetical
-    assert rows[0]["nearest dT_saturation_K [K]"] == "0.2000"
-    assert rows[0]["nearest dp_saturation_Pa [bar]"] == "0.2000"  # a difference: no gauge offset
-    assert rows[1]["nearest dT_saturation_K [K]"] == "n/a"
+    assert rows[0]["nearest dT_saturation [K]"] == "0.2000"
+    assert rows[0]["nearest dp_saturation [bar]"] == "0.2000"  # a difference: no gauge offset
+    assert rows[1]["nearest dT_saturation [K]"] == "n/a"
     assert rows[0]["alarms"] == "1: near-saturation x1"
     assert rows[0]["alarms under tight"] == "0" and rows[1]["alarms under tight"] == "2: near-saturation x2"
 
@@ -60,11 +60,13 @@ def test_summary_sections_list_at_most_a_screenful_of_changes():
 def test_summary_sections_name_each_part_of_the_summary():
     summary = summarise(_run("a.csv", ["liquid"] * 3, [-3, -2, -1]), near_limits={"dT_saturation_K": 2.0})
     sections = {s.title: s.table for s in summary_sections(summary, UNITS)}
-    assert list(sections) == ["Run campaign/a.csv", "Time in each phase", "Phase changes", "Margins", "Boundaries", "Alarms"]
+    assert list(sections) == ["Overview", "Time in each phase", "Phase changes", "Margins", "Boundaries", "Alarms"]
     assert sections["Alarms"].note == "no alarm"
     boundaries = {row[0]: row for row in sections["Boundaries"].rows}
     assert boundaries["saturation"][2] == "1.000"  # the sample at -2 K holds 1 s; the last one holds none
-    assert boundaries["saturation"][3] == "|dT_saturation_K| <= 2.000 K"
+    assert boundaries["saturation"][3] == "|dT_saturation| <= 2.000 K"
+    assert dict(sections["Overview"].rows)["log"] == "campaign/a.csv"
+    assert sections["Margins"].rows[0][0] == "dT_saturation [K]"
 
 
 TABLE = Table(["name", "value [K]"], [["a|b", "1.5"], ["<c>", "-20.25"]], "note")

@@ -85,7 +85,7 @@ def test_the_margins_carry_their_limits_boundary_and_alarm_periods():
         alarms={"dT_saturation_K": {"saturation-temperature": [(30.0, 45.5), (60.0, 70.0)]}},
     )
     panels = figure.axes
-    assert [a.get_ylabel() for a in panels] == ["dT_saturation_K [K]", "dp_saturation_Pa [bar]", "critical_distance"]
+    assert [a.get_ylabel() for a in panels] == ["dT_saturation [K]", "dp_saturation [bar]", "critical_distance"]
     sat, dp, crit = (_lines(a) for a in panels)
     np.testing.assert_allclose(sat["dT_saturation_K"].get_ydata(), run.margins["dT_saturation_K"])
     np.testing.assert_allclose(dp["dp_saturation_Pa"].get_ydata(), run.margins["dp_saturation_Pa"] / 1e5)  # a difference: no offset

@@ -17,15 +17,10 @@ def comparison_table(summaries: list[RunSummary], units: Units) -> Table:
     """Run, fluid, duration, samples, gaps, phase changes, main phases, the closest approach of
     each margin, alarms, and the alarms under each other configuration."""
     others = list(dict.fromkeys(name for s in summaries for name in s.alarms_under))
-    margin_headers = [_margin_header(name, units) for name in MARGINS]
+    margin_headers = [f"nearest {units.margin_label(name)}" for name in MARGINS]
     headers = ["run", "fluid", "duration [s]", "samples", "gaps", "phase changes", "main phases", *margin_headers, "alarms"]
     headers += [f"alarms under {name}" for name in others]
     return Table(headers, [_row(s, units, others) for s in summaries])
-
-
-def _margin_header(name: str, units: Units) -> str:
-    unit = units.margin(name)[1]
-    return f"nearest {name} [{unit}]" if unit else f"nearest {name}"
 
 
 def _row(summary: RunSummary, units: Units, others: list[str]) -> list[str]:

@@ -27,9 +27,20 @@ class Units:
             return self.pressure.difference_from_si, self.pressure.symbol
         return (lambda values: values), ""
 
+    def margin_label(self, name: str) -> str:
+        """A margin's name for people with the display unit: 'dp_saturation [bar]', not the SI key
+        'dp_saturation_Pa' (whose suffix would contradict the unit shown)."""
+        unit = self.margin(name)[1]
+        return f"{margin_name(name)} [{unit}]" if unit else margin_name(name)
+
     def margin_cell(self, name: str, value: float) -> str:
         scale, _ = self.margin(name)
         return format_number(float(scale(value)))
+
+
+def margin_name(name: str) -> str:
+    """A `MARGINS` key without its SI unit suffix: 'dT_saturation_K' -> 'dT_saturation'."""
+    return name.removesuffix("_K").removesuffix("_Pa")
 
 
 def seconds(value: float) -> str:

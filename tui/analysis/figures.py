@@ -137,7 +137,7 @@ def margins_figure(
             for i, (start, end) in enumerate(periods):
                 axes.axvspan(start, end, alpha=0.25, color="tab:red", label=f"alarm: {condition}" if i == 0 else None)
         axes.set_title(MARGIN_TITLES[name], fontsize="medium", loc="left")
-        axes.set_ylabel(f"{name} [{unit}]" if unit else name)
+        axes.set_ylabel(units.margin_label(name))
         axes.legend(loc="upper right", fontsize="x-small")
     panels[-1].set_xlabel("time [s]")
     figure.suptitle(f"{Path(run.source).name}: margins over time")

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from tui.analysis.display import Units, seconds, share
+from tui.analysis.display import Units, margin_name, seconds, share
 from tui.analysis.summary import AlarmTally, RunSummary
 from tui.analysis.tables import Section, Table
 
@@ -11,8 +11,9 @@ MAX_LISTED = 50
 
 
 def summary_sections(summary: RunSummary, units: Units) -> list[Section]:
+    """Overview, phases, phase changes, margins, boundaries and alarms; gaps and unreadable lines when there are any."""
     sections = [
-        Section(f"Run {summary.source}", _overview(summary)),
+        Section("Overview", _overview(summary)),
         Section("Time in each phase", _phases(summary)),
         Section("Phase changes", _listed(["t [s]", "from", "to"], [[seconds(c.t_s), c.before, c.after] for c in summary.phase_changes])),
         Section("Margins", _margins(summary, units)),
@@ -31,6 +32,7 @@ def summary_sections(summary: RunSummary, units: Units) -> list[Section]:
 def _overview(summary: RunSummary) -> Table:
     qualities = ", ".join(f"{q} {n}" for q, n in summary.samples_by_quality.items())
     rows = [
+        ["log", summary.source],
         ["fluid", summary.fluid],
         ["duration [s]", seconds(summary.duration_s)],
         ["samples", f"{summary.samples} ({qualities})" if qualities else "0"],
@@ -47,18 +49,18 @@ def _phases(summary: RunSummary) -> Table:
 
 
 def _margins(summary: RunSummary, units: Units) -> Table:
-    rows = []
-    for m in summary.margins:
-        _, unit = units.margin(m.margin)
-        label = f"{m.margin} [{unit}]" if unit else m.margin
-        rows.append([label, units.margin_cell(m.margin, m.minimum), seconds(m.minimum_t_s), units.margin_cell(m.margin, m.closest), seconds(m.closest_t_s)])
+    rows = [
+        [units.margin_label(m.margin), units.margin_cell(m.margin, m.minimum), seconds(m.minimum_t_s),
+         units.margin_cell(m.margin, m.closest), seconds(m.closest_t_s)]
+        for m in summary.margins
+    ]
     return Table(["margin", "lowest", "at [s]", "nearest zero", "at [s]"], rows)
 
 
 def _boundaries(summary: RunSummary, units: Units) -> Table:
     rows = []
     for b in summary.boundaries:
-        near = " or ".join(f"|{m}| <= {units.margin_cell(m, v)} {units.margin(m)[1]}".rstrip() for m, v in b.near_limits.items())
+        near = " or ".join(f"|{margin_name(m)}| <= {units.margin_cell(m, v)} {units.margin(m)[1]}".rstrip() for m, v in b.near_limits.items())
         rows.append([b.boundary, seconds(b.on_s), seconds(b.near_s), near or "on it only"])
     return Table(["boundary", "on [s]", "on or near [s]", "near means"], rows)
 
