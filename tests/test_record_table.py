@@ -103,6 +103,26 @@ def test_unusable_files_are_one_line_usage_errors(tmp_path, text, message):
         read_table(write(tmp_path, text))
 
 
+def test_a_header_of_noise_is_a_one_line_usage_error(tmp_path):
+    """Random bytes, an unclosed bracket or a control character in the header name the problem on one line."""
+    noise = bytes(np.random.default_rng(7).integers(0, 256, 3000, dtype=np.uint8))
+    for header in (noise, b"time [s,pressure (bar,temp\x1b[K\n0,1,2\n"):
+        path = tmp_path / "noise.csv"
+        path.write_bytes(header)
+        with pytest.raises(UsageError) as error:
+            read_table(path)
+        message = str(error.value)
+        assert "\n" not in message and len(message) < 300 and message.isprintable()
+
+
+def test_a_name_with_an_unclosed_bracket_is_a_name_without_unit(tmp_path):
+    path = write(tmp_path, "time [s,pressure [bar],temperature [degC]\n0,1,20\n")
+    with pytest.raises(UsageError, match=r"no column named 'time \[s'|no time column .*time \[s, pressure \[bar\]"):
+        read_table(path)
+    table = read_table(path, time_column="time [s")
+    assert table["pressure_Pa"].tolist() == [1e5]
+
+
 def test_missing_file(tmp_path):
     with pytest.raises(UsageError, match="cannot read .*absent.csv"):
         read_table(tmp_path / "absent.csv")

@@ -46,7 +46,8 @@ _TIME_NAMES = {"time", "t_s", "timestamp", "datetime", "date_time", "date", "ela
 _PRESSURE_NAMES = {"p", "pres", "press", "pressure", "pressure_pa"}
 _TEMPERATURE_NAMES = {"temp", "temperature", "temperature_k"}
 _TIME_UNITS = {"s": 1.0, "sec": 1.0, "ms": 1e-3, "min": 60.0, "h": 3600.0}
-_NAME_UNIT = re.compile(r"^\s*(?P<name>[^\[(]*?)\s*(?:[\[(](?P<unit>.*)[\])])?\s*$")
+#: 'pressure [bar(g)]' -> name, unit; matches any text (a name without a closed bracket has no unit)
+_NAME_UNIT = re.compile(r"^\s*(?P<name>.*?)\s*(?:[\[(](?P<unit>.*)[\])])?\s*$", re.DOTALL)
 
 
 @dataclass
@@ -356,8 +357,14 @@ def _find(names: list[str], given: str | None, known: set[str], what: str, path:
         if given is None and _is_named(name, known, what):
             return i, unit
     if given is not None:
-        raise UsageError(f"{path}: no column named {given!r}; the header has {', '.join(names)}")
-    raise UsageError(f"{path}: no {what} column in the header ({', '.join(names)}); name it with --{what}-column")
+        raise UsageError(f"{path}: no column named {given!r}; the header has {_header_text(names)}")
+    raise UsageError(f"{path}: no {what} column in the header ({_header_text(names)}); name it with --{what}-column")
+
+
+def _header_text(names: list[str], most: int = 120) -> str:
+    """The header's column names for a one-line message: printable, and cut short if long."""
+    text = ", ".join(names).encode("unicode_escape").decode("ascii")
+    return text if len(text) <= most else text[:most] + "..."
 
 
 def _is_named(name: str, known: set[str], what: str) -> bool:
