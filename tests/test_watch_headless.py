@@ -187,3 +187,52 @@ def test_bad_usage_is_one_line_and_exit_status_2(tmp_path, args, named):
     done = watch(tmp_path, f"virtual:{FIXTURES / 'water-calm.toml'}", "--headless", "--speed", "0", *args)
     assert done.returncode == 2
     assert named in done.stderr and len(done.stderr.strip().splitlines()) == 1
+
+
+def strict_json(line: str):
+    """json.loads that refuses the NaN and Infinity tokens Python writes but JSON forbids."""
+    def refuse(token):
+        raise AssertionError(f"invalid JSON token {token} in {line!r}")
+    return json.loads(line, parse_constant=refuse)
+
+
+def test_jsonl_is_strict_json_and_tells_unknown_from_not_closing(tmp_path):
+    csv = tmp_path / "no-wall-clock.csv"  # an invented bench export: no wall-clock column
+    csv.write_text("time [s],pressure [bar],temperature [degC]\n"
+                   + "".join(f"{k * 0.5},{20.0 + 0.1 * k},{10.0 - 0.05 * k}\n" for k in range(400)))
+    done = watch(tmp_path, str(csv), "--jsonl", "--fluid", "CO2", "--speed", "0")
+    objects = [strict_json(line) for line in done.stdout.splitlines()]
+    samples = [o for o in objects if o["type"] == "sample"]
+    assert len(samples) == 400 and all(o["t_wall"] is None for o in samples)
+    assert all(o["t_wall"] is None for o in objects if o["type"] == "source")
+    for sample in samples:
+        for margin, seconds in sample["time_to_boundary_s"].items():
+            closing = sample["closing"][margin]
+            assert (closing is True) == isinstance(seconds, float | int), (margin, seconds, closing)
+    first, last = samples[0], samples[-1]
+    assert first["closing"]["dT_saturation_K"] is None  # the trend window is not full yet: unknown
+    # pressure rising and temperature falling: the liquid moves away from the saturation curve ...
+    assert last["closing"]["dT_saturation_K"] is False and last["time_to_boundary_s"]["dT_saturation_K"] is None
+    # ... and towards the melting curve (cooling)
+    assert last["closing"]["dT_solid_K"] is True and last["time_to_boundary_s"]["dT_solid_K"] > 0
+    for line in (tmp_path / "logs").glob("run-*.csv").__next__().read_text().splitlines():
+        if line.startswith("# event ") or line.startswith("# meta "):
+            strict_json(line.split(" ", 2)[2])
+
+
+@pytest.mark.parametrize("source", ["virtual", "replay"])
+def test_source_reports_are_on_the_samples_clock(tmp_path, source):
+    """The run log's 'ended' report comes at the last sample's t_s, however fast the replay ran."""
+    if source == "virtual":
+        target = f"virtual:{FIXTURES / 'water-calm.toml'}"
+    else:
+        (tmp_path / "first").mkdir()
+        watch(tmp_path / "first", f"virtual:{FIXTURES / 'water-calm.toml'}", "--headless", "--speed", "0")
+        (target,) = map(str, (tmp_path / "first" / "logs").glob("run-*.csv"))
+    done = watch(tmp_path, target, "--headless", "--speed", "0", "--fluid", "water")
+    assert done.returncode == 0, done.stderr
+    log = run_log(tmp_path)
+    reports = {e["state"]: e for e in log.events if e.get("kind") == "source"}
+    assert reports["connected"]["t_s"] == 0.0
+    assert reports["ended"]["t_s"] == pytest.approx(float(log["t_s"][-1]), abs=1e-6)
+    assert reports["ended"]["t_wall"] == pytest.approx(float(log["t_wall"][-1]), abs=1e-3)

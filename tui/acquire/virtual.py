@@ -64,6 +64,7 @@ class VirtualGauge(Playback, Source):
                     yield [self._status("paused", f"paused at {self.position:.1f} s")]
                 continue
             j = self.pacer.batch_end(k, BATCH, lambda now: int(now * rate) + 1)
+            j = j if self.scenario.loop else min(j, total)  # the clock stops at the last sample
             batch = self._play(k, j)
             k = j
             self.pacer.position = (k - 1) / rate

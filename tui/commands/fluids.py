@@ -20,7 +20,6 @@ Such a fluid is evaluated with a cubic equation of state and is labelled approxi
 from __future__ import annotations
 
 import argparse
-import json
 import tomllib
 
 import thermo
@@ -36,6 +35,7 @@ from thermo.units import (
 )
 from tui.cli import SAFETY_NOTE
 from tui.errors import UsageError
+from tui.jsontext import dumps
 
 #: custom-fluid keys (lower case) -> parameter of thermo.custom_fluid
 _CUSTOM_KEYS = {
@@ -70,7 +70,7 @@ def add_parser(subparsers) -> None:
 def run(args) -> int:
     for fluid in map(thermo.fluid, thermo.fluids()):
         if args.json:
-            print(json.dumps(fluid_record(fluid)))
+            print(dumps(fluid_record(fluid)))
         else:
             print("\n".join(describe_fluid(fluid)), end="\n\n")
     return 0

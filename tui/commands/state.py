@@ -6,7 +6,6 @@ Values are read and shown in the user's units (the units typed for -p and -t unl
 
 from __future__ import annotations
 
-import json
 import math
 
 import numpy as np
@@ -27,6 +26,7 @@ from thermo.units import (
     split_temperature,
 )
 from tui.cli import SAFETY_NOTE
+from tui.jsontext import dumps
 from tui.commands.fluids import add_fluid_arguments, display_name, range_text, resolve_fluid
 from tui.errors import UsageError
 
@@ -84,7 +84,7 @@ def run(args) -> int:
                          f"{format_temperature(state['temperature_K'], T_unit)} is outside the range of its "
                          f"equation of state: {range_text(fluid, p_unit, T_unit)}")
     if args.json:
-        print(json.dumps({k: _json_value(v) for k, v in state.items()}, allow_nan=False))
+        print(dumps(state))
     else:
         print("\n".join(describe(fluid, state, p_unit, T_unit)))
     return 0
@@ -199,8 +199,3 @@ def _margins(fluid, state: dict, p_unit: PressureUnit, T_unit: TemperatureUnit) 
 
 def _scalar(value) -> float:
     return float(np.ravel(value)[0])
-
-
-def _json_value(value):
-    """NaN becomes null: JSON has no NaN."""
-    return None if isinstance(value, float) and math.isnan(value) else value

@@ -77,10 +77,9 @@ def run(args: argparse.Namespace) -> int:
     if args.interval <= 0 or args.hook_timeout <= 0:
         raise UsageError("--interval and --hook-timeout must be positive numbers of seconds")
     headless = args.headless or args.jsonl
-    if args.on_alarm and not headless:
-        raise UsageError("--on-alarm runs with --headless (the screen shows alarms itself)")
     hook_argv = split_command(args.on_alarm) if args.on_alarm else None
     options = SourceOptions.from_args(args)
+    monitors = MonitorFactory(options)  # checks the profile before any device is opened
     source = open_source(args.source, options)
     try:
         config = _config(args, source)
@@ -88,12 +87,41 @@ def run(args: argparse.Namespace) -> int:
     except BaseException:
         source.close()
         raise
+    hook = monitors.hook(hook_argv, args.hook_timeout) if hook_argv is not None else None
     if not headless:
-        return _screen(source, config, recorder)
+        return _screen(source, config, recorder, monitors, hook)
     print(SAFETY_NOTE, file=sys.stderr)
     print(f"rigside watch: {config.fluid} from {source.description}; configuration: {config.origin}; "
           f"recording to {recorder.path}", file=sys.stderr)
-    return _headless(args, source, options, config, recorder, hook_argv)
+    return _headless(args, source, config, recorder, monitors, hook)
+
+
+class MonitorFactory:
+    """Builds the monitor of a watch, the same way headless and on the screen: with the
+    acquisition checks (span, spike, stuck, stale, NE 43) of the gauge's profile. The screen
+    builds a new monitor when the operator switches fluid; the gauge's checks and their history
+    go on (one validator per watch), and the alarm hook follows the newest monitor."""
+
+    def __init__(self, options):
+        from tui.acquire import load_profile
+        from tui.acquire.validate import Validator, ValidatorConfig
+
+        profile = load_profile(options.profile)
+        self.validator = Validator(ValidatorConfig.from_profile(profile, atmosphere_Pa=options.atmosphere_Pa))
+        self.latest = None
+
+    def __call__(self, config):
+        from tui.monitor.pipeline import Monitor
+
+        self.latest = Monitor(config, validator=self.validator)
+        return self.latest
+
+    def hook(self, argv: list[str], timeout_s: float):
+        """The --on-alarm hook, reporting its failures as notes of the newest monitor."""
+        from tui.monitor.hook import AlarmHook
+
+        return AlarmHook(argv, timeout_s=timeout_s, report=lambda text: self.latest.note(text, "hook"),
+                         active_alarms=lambda: self.latest.active_alarms())
 
 
 def _config(args, source):
@@ -121,7 +149,7 @@ def _recorder(args, source, config):
     return RunRecorder(Path(args.log_dir) if args.log_dir else default_log_dir(), metadata)
 
 
-def _screen(source, config, recorder) -> int:
+def _screen(source, config, recorder, monitors, hook) -> int:
     try:
         from tui.screen import run_watch
     except ImportError as exc:
@@ -130,24 +158,22 @@ def _screen(source, config, recorder) -> int:
         from tui.errors import RuntimeFailure
 
         raise RuntimeFailure(f"the screen is not available ({exc}); use --headless") from None
-    return run_watch(source, config, recorder=recorder, label=source.description)
+    try:
+        return run_watch(source, config, recorder=recorder, label=source.description, make_monitor=monitors,
+                         sinks=[hook] if hook is not None else [])
+    finally:
+        if hook is not None:
+            hook.close()
 
 
-def _headless(args, source, options, config, recorder, hook_argv) -> int:
-    from tui.acquire import load_profile
-    from tui.acquire.validate import Validator, ValidatorConfig
-    from tui.monitor.hook import AlarmHook
-    from tui.monitor.pipeline import Monitor, run_live
+def _headless(args, source, config, recorder, monitors, hook) -> int:
+    from tui.monitor.pipeline import run_live
     from tui.monitor.sinks import JsonLinesSink, RecorderSink, StatusPrinter
 
-    validator = Validator(ValidatorConfig.from_profile(load_profile(options.profile), atmosphere_Pa=options.atmosphere_Pa))
-    monitor = Monitor(config, validator=validator)
+    monitor = monitors(config)
     sinks = [RecorderSink(recorder),
              JsonLinesSink(sys.stdout) if args.jsonl else StatusPrinter(sys.stdout, config, args.interval)]
-    hook = None
-    if hook_argv is not None:
-        hook = AlarmHook(hook_argv, timeout_s=args.hook_timeout, report=lambda text: monitor.note(text, "hook"),
-                         active_alarms=monitor.active_alarms)
+    if hook is not None:
         sinks.append(hook)
     stop, why = threading.Event(), ["the source ended"]
 

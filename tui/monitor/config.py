@@ -32,6 +32,7 @@ from thermo.units import (
 )
 from tui.acquire.sample import Quality
 from tui.errors import UsageError
+from tui.jsontext import dumps
 
 PRIORITIES = ("high", "medium", "low")
 
@@ -295,7 +296,7 @@ class MonitorConfig:
 
     def to_json(self) -> dict:
         """A JSON-safe copy of the effective tree (for run-log metadata)."""
-        return json.loads(json.dumps(self.effective))
+        return json.loads(dumps(self.effective))
 
 
 def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = None,

@@ -16,7 +16,6 @@ so that a relay script can simply follow whether any alarm is active.
 
 from __future__ import annotations
 
-import json
 import math
 import os
 import queue
@@ -27,6 +26,7 @@ import threading
 from collections.abc import Callable
 
 from tui.errors import UsageError
+from tui.jsontext import dumps
 from tui.monitor.pipeline import Sink
 from tui.monitor.sinks import event_json
 
@@ -67,7 +67,7 @@ def event_environment(event, active: list[str]) -> dict[str, str]:
         "RIGSIDE_EVENT_T_S": _text(event.t_s),
         "RIGSIDE_EVENT_T_WALL": _text(event.t_wall),
         "RIGSIDE_EVENT_IN_FLOOD": "1" if event.in_flood else "0",
-        "RIGSIDE_EVENT_JSON": _text(json.dumps(event_json(event), ensure_ascii=False)),
+        "RIGSIDE_EVENT_JSON": _text(dumps(event_json(event), ensure_ascii=False)),
         "RIGSIDE_ACTIVE_ALARMS": _text(",".join(active)),
     }
 

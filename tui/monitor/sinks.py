@@ -3,7 +3,6 @@ for people, or JSON Lines for programs). The alarm hook is in tui.monitor.hook."
 
 from __future__ import annotations
 
-import json
 import math
 import time
 from collections.abc import Iterator
@@ -11,6 +10,7 @@ from typing import TextIO
 
 from thermo.units import format_number, format_pressure, format_temperature, format_temperature_difference
 from tui.acquire.sample import SourceStatus
+from tui.jsontext import dumps, plain
 from tui.monitor.config import MonitorConfig
 from tui.monitor.model import Event, Reading
 from tui.monitor.pipeline import Sink
@@ -74,19 +74,22 @@ class RecorderSink(Sink):
         self.recorder.close()
 
 
-def _plain(value):
-    """JSON has no NaN or infinity: null stands for both (undefined, or not closing)."""
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    if isinstance(value, dict):
-        return {key: _plain(item) for key, item in value.items()}
-    return value
+def closing(seconds: float) -> bool | None:
+    """Whether a margin is closing on its boundary, from its predicted time to it: True (a
+    finite time), False (not closing: moving away or steady, time inf), None (unknown, NaN)."""
+    return None if math.isnan(seconds) else math.isfinite(seconds)
 
 
 def reading_json(reading: Reading) -> dict:
-    """One sample as a JSON Lines object (keys snake_case with the unit as suffix)."""
+    """One sample as a JSON Lines object (keys snake_case with the unit as suffix).
+
+    JSON has no NaN or infinity, so every undefined number is null. `time_to_boundary_s` is
+    null both when unknown and when the margin is not closing; `closing` tells them apart for
+    each margin: true (the time is a number), false (not closing at the present rate), null
+    (unknown: the trend window is not full, or the margin is undefined). `t_wall` is null for
+    replays of files without wall-clock time."""
     sample = reading.sample
-    return _plain({
+    return plain({
         "type": "sample",
         "t_s": reading.t_s,
         "t_wall": sample.t_wall,
@@ -97,13 +100,18 @@ def reading_json(reading: Reading) -> dict:
         **reading.margins,
         "rates_per_s": reading.rates,
         "time_to_boundary_s": reading.time_to_boundary,
+        "closing": {name: closing(seconds) for name, seconds in reading.time_to_boundary.items()},
         "active_alarms": list(reading.active_alarms),
         "reasons": list(sample.reasons),
     })
 
 
 def event_json(event: Event) -> dict:
-    return _plain({"type": "event", **event.to_json()})
+    return plain({"type": "event", **event.to_json()})
+
+
+def status_json(report: SourceStatus) -> dict:
+    return plain({"type": "source", "t_wall": report.t_wall, "state": report.state, "message": report.message})
 
 
 class JsonLinesSink(Sink):
@@ -113,15 +121,14 @@ class JsonLinesSink(Sink):
         self._stream = stream
 
     def write(self, readings, events) -> None:
-        lines = [json.dumps(reading_json(item) if isinstance(item, Reading) else event_json(item), allow_nan=False)
+        lines = [dumps(reading_json(item) if isinstance(item, Reading) else event_json(item))
                  for item in in_time_order(readings, events)]
         if lines:
             self._stream.write("\n".join(lines) + "\n")
             self._stream.flush()
 
     def status(self, report) -> None:
-        line = {"type": "source", "t_wall": report.t_wall, "state": report.state, "message": report.message}
-        self._stream.write(json.dumps(line) + "\n")
+        self._stream.write(dumps(status_json(report)) + "\n")
         self._stream.flush()
 
 

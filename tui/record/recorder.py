@@ -8,7 +8,6 @@ loses at most the last flush interval.
 
 from __future__ import annotations
 
-import json
 import math
 import os
 import threading
@@ -18,6 +17,7 @@ from pathlib import Path
 from typing import Any
 
 from tui.errors import UsageError
+from tui.jsontext import dumps
 
 FORMAT_LINE = "# rigside-run-log 1"
 META_PREFIX = "# meta "
@@ -60,8 +60,7 @@ def _row(reading, t0: float) -> str:
 
 
 def _json_line(obj: dict) -> str:
-    clean = {k: (None if isinstance(v, float) and not math.isfinite(v) else v) for k, v in obj.items()}
-    return json.dumps(clean, default=str, ensure_ascii=False)
+    return dumps(obj, default=str, ensure_ascii=False)
 
 
 def part_path(first: Path, part: int) -> Path:

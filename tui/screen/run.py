@@ -17,17 +17,18 @@ DEMO_LOG_DIR = Path(tempfile.gettempdir()) / "rigside-demo"
 CLOSE_WAIT_S = 2.0
 
 
-def run_watch(source, config, *, recorder=None, label: str = "", make_monitor=None) -> int:
+def run_watch(source, config, *, recorder=None, label: str = "", make_monitor=None, sinks=()) -> int:
     """Show the screen over `source` (a tui.acquire Source) with the monitor built from
-    `config` (a MonitorConfig) by `make_monitor(config)` (default: `Monitor(config)`; pass one
-    that adds a validator for live gauges); `recorder` (a RunRecorder) gets every batch first.
-    Closes the source and the recorder before returning; the exit status is the app's
-    (0, or 1 when the screen failed)."""
+    `config` (a MonitorConfig) by `make_monitor(config)` (default: `Monitor(config)`; `rigside
+    watch` passes one that adds the gauge's validator); `recorder` (a RunRecorder) gets every
+    batch first, the screen next, then each of `sinks` (e.g. the --on-alarm hook; the caller
+    closes them). Closes the source and the recorder before returning; the exit status is the
+    app's (0, or 1 when the screen failed)."""
     from tui.monitor.pipeline import Monitor
 
     paced = hasattr(source, "pacer")  # replays and the virtual gauge keep their own time
     session = Session(source, config, make_monitor=make_monitor or Monitor, recorder=recorder, label=label,
-                      stale_clock=None if paced else time.monotonic)
+                      stale_clock=None if paced else time.monotonic, sinks=sinks)
     app = make_app(session, pressure_unit=config.pressure_unit.label, temperature_unit=config.temperature_unit.label)
     try:
         app.run()
