@@ -204,3 +204,12 @@ def test_bad_usage_is_one_line_and_exit_status_2(capsys, tmp_path, args, message
     status, out, err = analyze(capsys, *args)
     assert status == 2 and out == ""
     assert len(err.strip().splitlines()) == 1 and message in err
+
+
+def test_nan_cells_of_a_plain_csv_are_failed_samples_not_good_ones(capsys, tmp_path):
+    """A CSV without a quality column: a 'nan' or 'inf' value is a failure (NAMUR NE 107), counted and alarmed."""
+    log = tmp_path / "cells.csv"
+    log.write_text("t_s,pressure [bar],temperature [degC]\n0,50,20\n1,nan,20\n2,50,inf\n3,51,20\n")
+    summary, _ = analyze_json(capsys, log, "--fluid", "CO2")
+    assert summary["samples_by_quality"] == {"failure": 2, "ok": 2}
+    assert "sensor-quality" in {a["condition"] for a in summary["alarms"]}

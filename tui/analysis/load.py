@@ -16,6 +16,7 @@ from pathlib import Path
 import numpy as np
 
 import thermo
+from tui.acquire.sample import Quality
 from tui.analysis.display import Units
 from tui.analysis.run import AnalysedRun, BadLine
 from tui.analysis.summary import alarm_periods
@@ -102,8 +103,10 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     config = choose_config(args, table, log)
     fluid_name = config.fluid
     quality = table.columns.get("quality")
+    if quality is None:
+        quality = plain_csv_quality(table["pressure_Pa"], table["temperature_K"])
     columns = {"t_s": table["t_s"], "t_wall": table["t_wall"], "pressure_Pa": table["pressure_Pa"],
-               "temperature_K": table["temperature_K"], "quality": np.full(len(table), "ok") if quality is None else quality}
+               "temperature_K": table["temperature_K"], "quality": quality}
     in_order = in_time_order(columns["t_s"])
     if not in_order.all():
         columns = {name: values[in_order] for name, values in columns.items()}
@@ -130,6 +133,13 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
         out_of_order=int(in_order.size - in_order.sum()),
     )
     return LoadedRun(run, thermo.fluid(fluid_name), config, others)
+
+
+def plain_csv_quality(pressure_Pa: np.ndarray, temperature_K: np.ndarray) -> np.ndarray:
+    """Quality of the rows of a CSV that records none: a NaN or infinite value (a 'nan' cell) is a
+    failure, as the live validator would judge it (NAMUR NE 107), the rest ok."""
+    finite = np.isfinite(pressure_Pa) & np.isfinite(temperature_K)
+    return np.where(finite, Quality.OK.value, Quality.FAILURE.value)
 
 
 def in_time_order(t_s: np.ndarray) -> np.ndarray:
