@@ -57,16 +57,27 @@ def test_faults_are_reproducible_and_where_asked():
     ("text", "message"),
     [
         ("start = {pressure = 1, temperature = 1}", "needs at least one [[segment]]"),
-        ("start = {pressure = 1}\n[[segment]]\nduration = 1", "start.temperature must be a finite number"),
-        ("start = {pressure = 1, temperature = 1}\n[[segment]]\nduration = -1", "segment 1 duration must be positive"),
+        ("start = {pressure = 1}\n[[segment]]\nduration = 1", "start.temperature is missing: give a number"),
+        ("start = {pressure = 1, temperature = 1}\n[[segment]]\nduration = -1", "segment 1.duration must be positive"),
         ("pressure_unit = 'cubit'", "unknown pressure unit 'cubit'"),
         ("start = {pressure = 1, temperature = 1}\n[faults]\ndropouts = 5\n[[segment]]\nduration = 1", "faults.dropouts must be a list"),
+        ("start = {pressure = 1, temperature = 1}\n[[segment]]\nduration = 1\ncolour = 2", "unknown key 'colour' in [segment 1]"),
+        ("start = {pressure = 1, temperature = 1}\n[noise]\npressure = 'high'\n[[segment]]\nduration = 1", "noise.pressure must be a finite number"),
     ],
 )
 def test_bad_scenarios_are_one_line_errors(text, message):
     with pytest.raises(UsageError, match=r"^scenario s.toml: ") as caught:
         parse_scenario(text, "s.toml")
     assert message in str(caught.value)
+
+
+def test_unreadable_scenario_files_are_one_line_errors(tmp_path):
+    with pytest.raises(UsageError, match=r"^scenario 'no-such': no such file or built-in scenario \(built-in: .*view-cell"):
+        load_scenario("no-such")
+    binary = tmp_path / "binary.toml"
+    binary.write_bytes(b"name = '\xff'\n")
+    with pytest.raises(UsageError, match=r"binary.toml: not UTF-8 text"):
+        load_scenario(binary)
 
 
 def test_virtual_gauge_source_plays_through_the_parser():

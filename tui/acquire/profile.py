@@ -28,15 +28,13 @@ Every problem is reported as one `UsageError` line naming the file and the key.
 
 from __future__ import annotations
 
-import math
 import re
 import string
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
-from tui.errors import UsageError
+from tui.acquire.toml_table import TomlTable, parse_toml, read_toml_text
 
 PARITIES = ("N", "E", "O", "M", "S")
 DATA_TYPES = ("int16", "uint16", "int32", "uint32", "float32", "float64")
@@ -141,76 +139,7 @@ _TOP_KEYS = {
 _DEVICE_KEYS = _TOP_KEYS - {"devices", "pairing", "modbus"}
 
 
-class _Reader:
-    """Typed access to one TOML table, with one-line errors naming the file and the key."""
-
-    def __init__(self, table: Any, where: str, origin: str, allowed: set[str]):
-        self.origin, self.where = origin, where
-        if not isinstance(table, dict):
-            self.fail(f"[{where}] must be a table")
-        unknown = sorted(set(table) - allowed)
-        if unknown:
-            self.fail(f"unknown key {unknown[0]!r} in [{where}]; allowed: {', '.join(sorted(allowed))}")
-        self.table = table
-
-    def fail(self, problem: str):
-        raise UsageError(f"profile {self.origin}: {problem}")
-
-    def name(self, key: str) -> str:
-        return f"{self.where}.{key}" if self.where != "top" else key
-
-    def text(self, key: str, default: str | None = None) -> str | None:
-        value = self.table.get(key, default)
-        if value is not None and not isinstance(value, str):
-            self.fail(f"{self.name(key)} must be a string, got {value!r}")
-        return value
-
-    def number(self, key: str, default: float | None = None, *, positive: bool = False) -> float | None:
-        value = self.table.get(key, default)
-        if value is None:
-            return None
-        if isinstance(value, bool) or not isinstance(value, int | float) or not math.isfinite(value):
-            self.fail(f"{self.name(key)} must be a finite number, got {value!r}")
-        if positive and value <= 0:
-            self.fail(f"{self.name(key)} must be positive, got {value!r}")
-        return float(value)
-
-    def integer(self, key: str, default: int | None = None, *, low: int = 0, high: int = 65535) -> int | None:
-        value = self.table.get(key, default)
-        if value is None:
-            return None
-        if isinstance(value, bool) or not isinstance(value, int) or not low <= value <= high:
-            self.fail(f"{self.name(key)} must be a whole number from {low} to {high}, got {value!r}")
-        return value
-
-    def flag(self, key: str, default: bool = False) -> bool:
-        value = self.table.get(key, default)
-        if not isinstance(value, bool):
-            self.fail(f"{self.name(key)} must be true or false, got {value!r}")
-        return value
-
-    def pair(self, key: str) -> tuple[float, float] | None:
-        value = self.table.get(key)
-        if value is None:
-            return None
-        ok = isinstance(value, list) and len(value) == 2 and all(
-            not isinstance(v, bool) and isinstance(v, int | float) and math.isfinite(v) for v in value
-        )
-        if not ok or value[0] == value[1]:
-            self.fail(f"{self.name(key)} must be two different numbers [low, high], got {value!r}")
-        return float(value[0]), float(value[1])
-
-    def choice(self, key: str, choices: tuple, default: Any) -> Any:
-        value = self.table.get(key, default)
-        if value not in choices:
-            self.fail(f"{self.name(key)} must be one of {', '.join(map(str, choices))}, got {value!r}")
-        return value
-
-    def sub(self, key: str, allowed: set[str]) -> _Reader:
-        return _Reader(self.table.get(key, {}), self.name(key), self.origin, allowed)
-
-
-def _quantity(reader: _Reader, key: str) -> Quantity:
+def _quantity(reader: TomlTable, key: str) -> Quantity:
     allowed = {"unit", "span", "resolution", "rate_limit", "signal", "raw", "value", "field",
                "register", "register_type", "data_type"}
     if key == "pressure":
@@ -250,7 +179,7 @@ def _quantity(reader: _Reader, key: str) -> Quantity:
     )
 
 
-def _check_unit(reader: _Reader, key: str, unit: str) -> None:
+def _check_unit(reader: TomlTable, key: str, unit: str) -> None:
     from thermo.units import PressureUnit, TemperatureUnit, UnitError
 
     try:
@@ -259,7 +188,7 @@ def _check_unit(reader: _Reader, key: str, unit: str) -> None:
         reader.fail(f"{key}.unit: {exc}")
 
 
-def _escape_bytes(reader: _Reader, key: str, text: str | None) -> bytes | None:
+def _escape_bytes(reader: TomlTable, key: str, text: str | None) -> bytes | None:
     if text is None:
         return None
     if text == "":
@@ -270,7 +199,7 @@ def _escape_bytes(reader: _Reader, key: str, text: str | None) -> bytes | None:
         reader.fail(f"{reader.name(key)} must hold byte values only (\\u0000 to \\u00ff), got {text!r}")
 
 
-def _check_emit(reader: _Reader, template: str | None) -> None:
+def _check_emit(reader: TomlTable, template: str | None) -> None:
     """An emit template may only name {pressure} and {temperature}, with a float format."""
     if template is None:
         return
@@ -286,7 +215,7 @@ def _check_emit(reader: _Reader, template: str | None) -> None:
         reader.fail(f"emit template {template!r}: {exc}")
 
 
-def _profile(top: _Reader, role: str | None) -> GaugeProfile:
+def _profile(top: TomlTable, role: str | None) -> GaugeProfile:
     """One device's profile from its table; `role` names the one quantity it carries, if so."""
     serial = top.sub("serial", {"baudrate", "bytesize", "parity", "stopbits"})
     settings = {}
@@ -376,11 +305,8 @@ def _profile(top: _Reader, role: str | None) -> GaugeProfile:
 
 def parse_profile(text: str, origin: str = "<text>") -> GaugeProfile:
     """A profile from TOML text; any problem raises a one-line `UsageError`."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise UsageError(f"profile {origin}: not valid TOML: {exc}") from None
-    top = _Reader(data, "top", origin, _TOP_KEYS)
+    data = parse_toml(text, "profile", origin)
+    top = TomlTable(data, "top", origin, _TOP_KEYS)
     if "devices" not in data:
         if "pairing" in data:
             top.fail("[pairing] needs [devices.pressure] and [devices.temperature]")
@@ -393,7 +319,7 @@ def parse_profile(text: str, origin: str = "<text>") -> GaugeProfile:
         devices[role] = _profile(devices_table.sub(role, _DEVICE_KEYS), role)
     pairing = top.sub("pairing", {"tolerance_s"})
     shared = {k: v for k, v in data.items() if k not in ("devices", "pairing")}
-    profile = _profile(_Reader(shared, "top", origin, _TOP_KEYS), None)
+    profile = _profile(TomlTable(shared, "top", origin, _TOP_KEYS), None)
     return replace(profile, devices=devices, pair_tolerance_s=pairing.number("tolerance_s", 0.5, positive=True))
 
 
@@ -402,12 +328,4 @@ def load_profile(name_or_path: str | Path | None) -> GaugeProfile:
     if name_or_path is None or str(name_or_path) == "generic":
         return GENERIC
     path = Path(name_or_path)
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise UsageError(f"cannot read profile {path}: {exc.strerror or exc}") from None
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        raise UsageError(f"profile {path}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    return parse_profile(text, str(path))
+    return parse_profile(read_toml_text(path, "profile"), str(path))

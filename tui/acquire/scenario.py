@@ -22,7 +22,6 @@ so a scenario played twice, or sought into, gives the same values.
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
@@ -30,6 +29,7 @@ from pathlib import Path
 import numpy as np
 
 from thermo.units import PressureUnit, TemperatureUnit, UnitError
+from tui.acquire.toml_table import TomlTable, parse_toml, read_toml_text
 from tui.errors import UsageError
 
 #: samples per block of reproducible random numbers
@@ -145,93 +145,71 @@ class Scenario:
         return bytes(rng.choice(_GARBAGE_BYTES[(_GARBAGE_BYTES != 10) & (_GARBAGE_BYTES != 13)], rng.integers(4, 40)))
 
 
-def _fail(origin: str, problem: str):
-    raise UsageError(f"scenario {origin}: {problem}")
+def _intervals(faults: TomlTable, key: str) -> tuple[tuple[float, float], ...]:
+    """faults.<key>: a list of [start_s, duration_s] pairs of non-negative numbers."""
+    value = faults.table.get(key, [])
 
-
-def _number(origin: str, table: dict, key: str, default: float | None, where: str, *, positive: bool = False) -> float:
-    value = table.get(key, default)
-    if isinstance(value, bool) or not isinstance(value, int | float) or not math.isfinite(value):
-        _fail(origin, f"{where}{key} must be a finite number, got {value!r}")
-    if positive and value <= 0:
-        _fail(origin, f"{where}{key} must be positive, got {value!r}")
-    return float(value)
-
-
-def _intervals(origin: str, faults: dict, key: str) -> tuple[tuple[float, float], ...]:
-    value = faults.get(key, [])
     def interval(v) -> bool:
         return isinstance(v, list) and len(v) == 2 and all(
             isinstance(x, int | float) and not isinstance(x, bool) and x >= 0 for x in v
         )
 
-    ok = isinstance(value, list) and all(interval(v) for v in value)
-    if not ok:
-        _fail(origin, f"faults.{key} must be a list of [start_s, duration_s] pairs, got {value!r}")
+    if not isinstance(value, list) or not all(interval(v) for v in value):
+        faults.fail(f"faults.{key} must be a list of [start_s, duration_s] pairs, got {value!r}")
     return tuple((float(a), float(b)) for a, b in value)
-
-
-def _table(origin: str, data: dict, key: str, allowed: set[str]) -> dict:
-    table = data.get(key, {})
-    if not isinstance(table, dict):
-        _fail(origin, f"[{key}] must be a table")
-    unknown = sorted(set(table) - allowed)
-    if unknown:
-        _fail(origin, f"unknown key {unknown[0]!r} in [{key}]; allowed: {', '.join(sorted(allowed))}")
-    return table
 
 
 _TOP = {"name", "description", "fluid", "rate_hz", "seed", "loop", "pressure_unit", "temperature_unit",
         "start", "noise", "drift", "faults", "segment"}
 _FAULTS = {"garbage_probability", "spike_probability", "spike_pressure", "spike_temperature", "dropouts", "stuck"}
+_QUANTITIES = {"pressure", "temperature"}
+_SEGMENT = {"duration", "pressure", "temperature", "label"}
 
 
 def parse_scenario(text: str, origin: str = "<text>") -> Scenario:
     """A scenario from TOML text; any problem raises a one-line `UsageError`."""
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        _fail(origin, f"not valid TOML: {exc}")
-    unknown = sorted(set(data) - _TOP)
-    if unknown:
-        _fail(origin, f"unknown key {unknown[0]!r}; allowed: {', '.join(sorted(_TOP))}")
+    data = parse_toml(text, "scenario", origin)
+    top = TomlTable(data, "top", origin, _TOP, kind="scenario")
     try:
         pu = PressureUnit.from_text(str(data.get("pressure_unit", "bar")))
         tu = TemperatureUnit.from_text(str(data.get("temperature_unit", "degC")))
     except UnitError as exc:
-        _fail(origin, str(exc))
-    start = _table(origin, data, "start", {"pressure", "temperature"})
-    p = _number(origin, start, "pressure", None, "start.")
-    T = _number(origin, start, "temperature", None, "start.")
+        top.fail(str(exc))
+    start = top.sub("start", _QUANTITIES)
+    p = start.number("pressure", required=True)
+    T = start.number("temperature", required=True)
     segments = data.get("segment", [])
     if not isinstance(segments, list) or not segments or not all(isinstance(s, dict) for s in segments):
-        _fail(origin, "needs at least one [[segment]] with a duration")
+        top.fail("needs at least one [[segment]] with a duration")
     knots_t, knots_p, knots_T, labels = [0.0], [p], [T], []
-    for n, segment in enumerate(segments, 1):
-        extra = sorted(set(segment) - {"duration", "pressure", "temperature", "label"})
-        if extra:
-            _fail(origin, f"unknown key {extra[0]!r} in segment {n}; allowed: duration, pressure, temperature, label")
-        knots_t.append(knots_t[-1] + _number(origin, segment, "duration", None, f"segment {n} ", positive=True))
-        p = _number(origin, segment, "pressure", p, f"segment {n} ")
-        T = _number(origin, segment, "temperature", T, f"segment {n} ")
+    for n, table in enumerate(segments, 1):
+        segment = TomlTable(table, f"segment {n}", origin, _SEGMENT, kind="scenario")
+        knots_t.append(knots_t[-1] + segment.number("duration", positive=True, required=True))
+        p, T = segment.number("pressure", p), segment.number("temperature", T)
         knots_p.append(p)
         knots_T.append(T)
-        labels.append(str(segment.get("label", "")))
-    noise = _table(origin, data, "noise", {"pressure", "temperature"})
-    drift = _table(origin, data, "drift", {"pressure", "temperature"})
-    faults = _table(origin, data, "faults", _FAULTS)
-    probabilities = [_number(origin, faults, k, 0.0, "faults.") for k in ("garbage_probability", "spike_probability")]
+        labels.append(str(table.get("label", "")))
+    noise, drift = top.sub("noise", _QUANTITIES), top.sub("drift", _QUANTITIES)
+    faults = top.sub("faults", _FAULTS)
+    probabilities = [faults.number(k, 0.0) for k in ("garbage_probability", "spike_probability")]
     if any(not 0 <= q <= 1 for q in probabilities) or sum(probabilities) > 1:
-        _fail(origin, "fault probabilities must be between 0 and 1 (and add up to at most 1)")
+        top.fail("fault probabilities must be between 0 and 1 (and add up to at most 1)")
     p_si, T_si = pu.to_si(np.array(knots_p)), tu.to_si(np.array(knots_T))
     if (p_si < 0).any() or (T_si <= 0).any():
-        _fail(origin, "pressures must be at least 0 absolute and temperatures above 0 K")
+        top.fail("pressures must be at least 0 absolute and temperatures above 0 K")
+
+    def pressure_step(table: TomlTable, key: str) -> float:
+        return float(pu.difference_to_si(table.number(key, 0.0)))
+
+    def temperature_step(table: TomlTable, key: str) -> float:
+        return float(tu.difference_to_si(table.number(key, 0.0)))
+
     return Scenario(
         name=str(data.get("name", Path(origin).stem)),
         description=str(data.get("description", "")),
         fluid=str(data.get("fluid", "")),
-        rate_hz=_number(origin, data, "rate_hz", 5.0, "", positive=True),
-        seed=int(_number(origin, data, "seed", 1, "")),
+        rate_hz=top.number("rate_hz", 5.0, positive=True),
+        seed=int(top.number("seed", 1)),
         loop=bool(data.get("loop", False)),
         pressure_unit=pu,
         temperature_unit=tu,
@@ -239,16 +217,16 @@ def parse_scenario(text: str, origin: str = "<text>") -> Scenario:
         knot_p=p_si,
         knot_T=T_si,
         labels=tuple(labels),
-        noise_p=float(pu.difference_to_si(_number(origin, noise, "pressure", 0.0, "noise."))),
-        noise_T=float(tu.difference_to_si(_number(origin, noise, "temperature", 0.0, "noise."))),
-        drift_p=float(pu.difference_to_si(_number(origin, drift, "pressure", 0.0, "drift."))) / 3600.0,
-        drift_T=float(tu.difference_to_si(_number(origin, drift, "temperature", 0.0, "drift."))) / 3600.0,
+        noise_p=pressure_step(noise, "pressure"),
+        noise_T=temperature_step(noise, "temperature"),
+        drift_p=pressure_step(drift, "pressure") / 3600.0,
+        drift_T=temperature_step(drift, "temperature") / 3600.0,
         garbage_probability=probabilities[0],
         spike_probability=probabilities[1],
-        spike_p=float(pu.difference_to_si(_number(origin, faults, "spike_pressure", 0.0, "faults."))),
-        spike_T=float(tu.difference_to_si(_number(origin, faults, "spike_temperature", 0.0, "faults."))),
-        dropouts=_intervals(origin, faults, "dropouts"),
-        stuck=_intervals(origin, faults, "stuck"),
+        spike_p=pressure_step(faults, "spike_pressure"),
+        spike_T=temperature_step(faults, "spike_temperature"),
+        dropouts=_intervals(faults, "dropouts"),
+        stuck=_intervals(faults, "stuck"),
         origin=origin,
     )
 
@@ -266,11 +244,7 @@ def load_scenario(name_or_path: str | Path) -> Scenario:
     if "/" not in text and not text.endswith(".toml") and builtin.is_file():
         return parse_scenario(builtin.read_text(encoding="utf-8"), f"built-in {text}")
     path = Path(name_or_path)
-    try:
-        content = path.read_bytes().decode("utf-8")
-    except OSError as exc:
+    if not path.is_file():
         known = ", ".join(builtin_scenarios())
-        raise UsageError(f"cannot read scenario {path}: {exc.strerror or exc} (built-in scenarios: {known})") from None
-    except UnicodeDecodeError as exc:
-        raise UsageError(f"scenario {path}: not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    return parse_scenario(content, str(path))
+        raise UsageError(f"scenario {text!r}: no such file or built-in scenario (built-in: {known})")
+    return parse_scenario(read_toml_text(path, "scenario"), str(path))
