@@ -30,6 +30,8 @@ BOUNDARIES = {
 
 @dataclass(frozen=True, slots=True)
 class Gap:
+    """An interval between two samples longer than the gap threshold [s]."""
+
     start_s: float
     end_s: float
 
@@ -40,6 +42,8 @@ class Gap:
 
 @dataclass(frozen=True, slots=True)
 class PhaseChange:
+    """The phase label changed at t_s [s] from `before` to `after`."""
+
     t_s: float
     before: str
     after: str
@@ -81,6 +85,8 @@ class AlarmTally:
 
 @dataclass(frozen=True, slots=True)
 class RunSummary:
+    """What `rigside analyze` says of one run: the tables and the JSON are made from this."""
+
     source: str
     fluid: str
     duration_s: float

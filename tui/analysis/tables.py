@@ -10,6 +10,8 @@ from dataclasses import dataclass
 
 @dataclass(frozen=True, slots=True)
 class Table:
+    """Rows of formatted cells under headers (all headers blank: a two-column key/value list)."""
+
     headers: list[str]
     rows: list[list[str]]
     note: str = ""
@@ -18,6 +20,8 @@ class Table:
 
 @dataclass(frozen=True, slots=True)
 class Section:
+    """A titled table: one part of a run's summary."""
+
     title: str
     table: Table
 
@@ -35,6 +39,7 @@ def render_text(table: Table) -> str:
 
 
 def render_markdown(table: Table) -> str:
+    """A GitHub-flavoured Markdown table ('|' in cells escaped)."""
     def line(row: list[str]) -> str:
         return "| " + " | ".join(cell.replace("|", "\\|") for cell in row) + " |"
 
@@ -43,6 +48,7 @@ def render_markdown(table: Table) -> str:
 
 
 def render_html(table: Table) -> str:
+    """An HTML table with every cell escaped."""
     head = "".join(f"<th>{html.escape(h)}</th>" for h in table.headers)
     body = "".join("<tr>" + "".join(f"<td>{html.escape(c)}</td>" for c in row) + "</tr>" for row in table.rows)
     note = f"<p class=\"note\">{html.escape(table.note)}</p>" if table.note else ""
@@ -51,6 +57,7 @@ def render_html(table: Table) -> str:
 
 
 def render_csv(table: Table) -> str:
+    """Comma-separated values with the header row (the note is left out)."""
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(table.headers)
@@ -59,4 +66,5 @@ def render_csv(table: Table) -> str:
 
 
 def render_sections_text(sections: list[Section]) -> str:
+    """Each section's title over its text table, sections apart by a blank line."""
     return "\n\n".join(f"{s.title}\n{render_text(s.table)}" for s in sections)
