@@ -12,7 +12,8 @@ from enum import StrEnum
 
 
 class Quality(StrEnum):
-    """NAMUR NE 107 status signal of one sample (plus `ok`)."""
+    """Status signal of one sample in the categories of NAMUR NE 107, "Self-monitoring and
+    diagnosis of field devices" (NAMUR recommendation NE 107, 2017), plus `ok`."""
 
     OK = "ok"
     FAILURE = "failure"

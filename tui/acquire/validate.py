@@ -25,7 +25,8 @@ from dataclasses import dataclass
 from tui.acquire.profile import GaugeProfile, Quantity
 from tui.acquire.sample import QUALITY_SEVERITY, Quality, Sample
 
-#: NAMUR NE 43 signal levels [mA]
+#: signal levels [mA] of NAMUR NE 43, "Standardization of the signal level for the failure
+#: information of digital transmitters" (NAMUR recommendation NE 43, 2003)
 NE43_FAILURE_LOW, NE43_RANGE_LOW, NE43_RANGE_HIGH, NE43_FAILURE_HIGH = 3.6, 3.8, 20.5, 21.0
 
 _RANK = {q: i for i, q in enumerate(QUALITY_SEVERITY)}
