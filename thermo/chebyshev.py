@@ -78,8 +78,10 @@ class ChebyshevPieces:
         piece_of_cell = np.repeat(np.arange(len(coefficients)), np.diff(np.round(grid).astype(int)))
         object.__setattr__(self, "edges", edges)
         object.__setattr__(self, "coefficients", coefficients)
+        scalar = np.array  # 0-d arrays: cheaper numpy operands than Python floats on small arrays
         object.__setattr__(self, "_lookup", {
-            "a": a, "b": b, "cells": cells, "scale": cells / (b - a), "piece": piece_of_cell,
+            "a": scalar(a), "b": scalar(b), "last_cell": scalar(cells - 1.0), "scale": scalar(cells / (b - a)),
+            "piece": piece_of_cell,
             "mid": 0.5 * (edges[1:] + edges[:-1]), "inv_half": 2.0 / np.diff(edges),
             "columns": np.ascontiguousarray(coefficients.T),
         })
@@ -92,36 +94,37 @@ class ChebyshevPieces:
         """Value of the series at x (scalar -> float, array -> array of the same shape)."""
         x = np.asarray(x, dtype=float)
         flat = x.reshape(-1)
-        out = np.empty_like(flat)
-        with np.errstate(invalid="ignore", over="ignore"):  # infinite x: masked to NaN anyway
+        if flat.size <= CHUNK:  # the live case: no copy into an output array
+            out = self._evaluate(flat)
+        else:
+            out = np.empty_like(flat)
             for start in range(0, flat.size, CHUNK):
                 out[start:start + CHUNK] = self._evaluate(flat[start:start + CHUNK])
         return float(out[0]) if x.ndim == 0 else out.reshape(x.shape)
 
     def _evaluate(self, x: np.ndarray) -> np.ndarray:
-        """Clenshaw sum over a chunk, every point in its own piece."""
+        """Clenshaw sum over a chunk, every point in its own piece.
+
+        x is first clipped onto [a, b] (NaN stays NaN), so no step meets an infinity and no
+        floating-point state needs guarding; the points the clip moved are NaN at the end.
+        Few numpy calls, none in place (an in-place ufunc on a one-element array costs about
+        three times a new one): their fixed cost is what a chunk of one sample pays.
+        """
         lk = self._lookup
-        u = (x - lk["a"]) * lk["scale"]
-        np.fmax(u, 0.0, out=u)  # fmax also maps NaN to 0: any valid cell, masked below
-        np.fmin(u, lk["cells"] - 1, out=u)
-        piece = lk["piece"].take(u.astype(np.intp))
-        t = (x - lk["mid"].take(piece)) * lk["inv_half"].take(piece)
+        inside = np.minimum(np.maximum(x, lk["a"]), lk["b"])
+        cell = np.fmin((inside - lk["a"]) * lk["scale"], lk["last_cell"])  # fmin maps NaN to a valid cell
+        piece = lk["piece"].take(cell.astype(np.intp))
+        t = (inside - lk["mid"].take(piece)) * lk["inv_half"].take(piece)
         columns = lk["columns"]
-        degree = len(columns) - 1
-        if degree == 0:
+        if len(columns) == 1:
             result = columns[0].take(piece)
         else:
-            two_t = 2.0 * t
-            b1, b2 = columns[degree].take(piece), np.zeros_like(t)
-            for k in range(degree - 1, 0, -1):
-                b0 = columns[k].take(piece)
-                b0 += two_t * b1
-                b0 -= b2
-                b1, b2 = b0, b1
-            result = columns[0].take(piece)
-            result += t * b1
-            result -= b2
-        result[~((x >= lk["a"]) & (x <= lk["b"]))] = np.nan
+            two_t = t + t
+            b1, b2 = columns[-1].take(piece), np.zeros(t.shape)
+            for k in range(len(columns) - 2, 0, -1):
+                b1, b2 = columns[k].take(piece) + two_t * b1 - b2, b1
+            result = columns[0].take(piece) + t * b1 - b2
+        result[inside != x] = np.nan  # outside [a, b], and NaN input
         return result
 
     def derivative(self) -> ChebyshevPieces:

@@ -128,7 +128,7 @@ def _classify_block(fluid, T, p, u_T, u_p, k):
                          (SOLID, is_solid), (LIQUID_VAPOR, near_sat), (SOLID_VAPOR, near_solid & ~high),
                          (SOLID_LIQUID, near_solid & high), (TRIPLE, near_triple), (CRITICAL, near_critical),
                          (OUT_OF_RANGE, ~inside)):
-        np.maximum(code, where.view(np.uint8) * np.uint8(label), out=code)
+        code = np.maximum(code, where.view(np.uint8) * np.uint8(label))  # not in place: cheaper on small chunks
 
     extrapolated = inside & (T < fluid.range.T_min) & (code != SOLID)
     if fluid.approximate:

@@ -489,7 +489,8 @@ class SolidCurves:
         out = np.full(flat.shape, np.nan)
         for curve, where in ((self.melting, flat >= self.triple[1]), (self.sublimation, flat < self.triple[1])):
             index = np.flatnonzero(where)  # NaN in neither; indices gather faster than masks
-            out.put(index, getattr(curve, method)(flat.take(index)))
+            if index.size:  # a live chunk mostly lies on one side: skip the other curve's fixed cost
+                out.put(index, getattr(curve, method)(flat.take(index)))
         return out.reshape(p.shape)
 
     def solid_temperature(self, p) -> np.ndarray:
