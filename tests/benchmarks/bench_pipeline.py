@@ -26,6 +26,9 @@ from tui.monitor.config import load_config
 from tui.monitor.pipeline import Monitor
 
 ALL_ON = {"saturation-pressure"}  # off by default; on here so that every condition is evaluated
+#: live cost [us/sample] by chunk size before the small-chunk work on thermo's classification
+#: (commit 6fc8401, this machine, 2026-12-01), printed beside today's figures
+BEFORE_US = {1: 673.0, 10: 54.2, 50: 16.7, 200: 6.7, 1000: 4.6}
 
 
 def config_all_on(tmp):
@@ -74,8 +77,9 @@ def bench_live(config, t, p, T, quality) -> None:
 
             per_sample = best_of(2, feed) / count
             label = "with validator" if validated else "monitor       "
+            before = "" if validated else f"; before: {BEFORE_US[chunk]:6.1f} us/sample"
             print(f"live {label} chunk {chunk:5d}: {per_sample * 1e6:9.1f} us/sample "
-                  f"({per_sample / reference:5.2f} x reference)")
+                  f"({per_sample / reference:5.2f} x reference{before})")
 
 
 def bench_batch(config, n: int) -> None:
