@@ -42,6 +42,14 @@ def test_iso_8601_time(tmp_path):
     assert table.bad_lines == [(4, "time 'timestamp' is not ISO 8601")]
 
 
+def test_an_empty_or_garbled_iso_time_is_a_bad_line_and_the_rest_is_read(tmp_path):
+    rows = [f"2026-03-01T10:00:{i:02d}Z,{i},300" for i in range(40)]
+    rows[7], rows[30] = ",7,300", "2026-13-45T99:00:00Z,30,300"
+    table = read_table(write(tmp_path, "timestamp,p [bar],T [K]\n" + "\n".join(rows) + "\n"))
+    assert [line for line, _ in table.bad_lines] == [9, 32]
+    assert table["t_s"].tolist() == [float(i) for i in range(40) if i not in (7, 30)]
+
+
 def test_iso_times_with_offsets(tmp_path):
     path = write(tmp_path, "time,p [bar],T [K]\n2026-03-01T11:00:00+01:00,1,300\n2026-03-01 10:00:01,2,301\n")
     table = read_table(path)
