@@ -3,6 +3,7 @@ errors that name the key, and the `rigside config` command."""
 
 from __future__ import annotations
 
+import json
 import tomllib
 
 import pytest
@@ -21,6 +22,11 @@ def write(tmp_path, text: str):
 def test_the_default_file_sets_every_key_and_loads():
     defaults = tomllib.loads(default_text())
     for section, keys in SECTION_KEYS.items():
+        if section == "custom-fluid":  # no default: documented as a commented example
+            after = default_text().split("# [custom-fluid]\n")[1].splitlines()
+            example = [line.removeprefix("# ") for line in after[:len(keys)]]
+            assert set(tomllib.loads("\n".join(example))) == set(keys)
+            continue
         assert set(defaults[section]) == set(keys), section
     for name, keys in CONDITION_KEYS.items():
         assert set(defaults["conditions"][name]) == set(keys), name
@@ -128,3 +134,43 @@ def test_a_personal_configuration_in_the_usual_place_is_used(tmp_path, capsys, m
     (tmp_path / "rigside" / "monitor.toml").write_text('fluid = "argon"\n')
     assert main(["config"]) == 0
     assert tomllib.loads(capsys.readouterr().out)["fluid"] == "argon"
+
+
+BUTANE = {"name": "n-butane", "Tc": "425.1 K", "pc": "37.96 bar", "omega": 0.2, "M": "58.12 g/mol", "Tt": "134.9 K"}
+
+
+def test_a_custom_fluid_from_a_file_is_recorded_in_si_and_rebuilt_from_the_record(tmp_path):
+    from tui.monitor.config import config_from_tree
+
+    path = tmp_path / "butane.toml"
+    path.write_text("[custom-fluid]\n" + "".join(f"{k} = {json.dumps(v)}\n" for k, v in BUTANE.items()))
+    config = load_config(path)
+    assert config.fluid == "n-butane" and config.thermo_fluid.approximate
+    assert "approximate" in config.thermo_fluid.name
+    # hand conversions from the unit definitions (1 bar = 1e5 Pa, 1 g = 1e-3 kg)
+    assert config.effective["custom-fluid"] == {"name": "n-butane", "Tc": 425.1, "pc": 3.796e6, "omega": 0.2,
+                                                "M": pytest.approx(0.05812), "Tt": 134.9}
+    rebuilt = config_from_tree(config.to_json(), "recorded")
+    assert rebuilt.thermo_fluid.critical.p == config.thermo_fluid.critical.p == 3.796e6
+    assert rebuilt.thermo_fluid.triple.T == 134.9
+    assert float(rebuilt.thermo_fluid.saturation_pressure(300.0)) == float(config.thermo_fluid.saturation_pressure(300.0))
+    # a built-in fluid chosen later replaces the custom one
+    assert config.for_fluid("CO2").thermo_fluid.name == "carbon dioxide"
+    assert "custom-fluid" not in config.for_fluid("CO2").effective
+
+
+def test_a_custom_fluid_object_goes_in_as_its_table_and_a_conflicting_name_is_refused(tmp_path):
+    import thermo
+
+    fluid = thermo.custom_fluid("my gas", 304.13, 7.3773e6, -0.01, 0.04401)  # no triple point: no Tt
+    config = load_config(None, fluid=fluid)
+    assert config.effective["custom-fluid"] == {"name": "my gas", "Tc": 304.13, "pc": 7.3773e6, "omega": -0.01,
+                                                "M": 0.04401}
+    assert load_config(None, fallback_fluid=fluid).fluid == "my gas"
+    path = tmp_path / "both.toml"
+    path.write_text('fluid = "CO2"\n[custom-fluid]\nname = "x"\nTc = 300.0\npc = 5e6\nomega = 0.1\nM = 0.03\n')
+    with pytest.raises(UsageError, match="name one fluid"):
+        load_config(path)
+    path.write_text('[custom-fluid]\nTc = "300 K"\n')
+    with pytest.raises(UsageError, match="missing pc, omega, M"):
+        load_config(path)

@@ -236,3 +236,29 @@ def test_source_reports_are_on_the_samples_clock(tmp_path, source):
     assert reports["connected"]["t_s"] == 0.0
     assert reports["ended"]["t_s"] == pytest.approx(float(log["t_s"][-1]), abs=1e-6)
     assert reports["ended"]["t_wall"] == pytest.approx(float(log["t_wall"][-1]), abs=1e-3)
+
+
+def test_a_custom_fluid_is_watched_labelled_approximate_and_rebuilt_by_analyze(tmp_path):
+    spec = "Tc=425.1 K, pc=37.96 bar, omega=0.2, M=58.12 g/mol, Tt=134.9 K, name=n-butane"
+    done = watch(tmp_path, f"virtual:{FIXTURES / 'water-calm.toml'}", "--headless", "--speed", "0", "--custom", spec)
+    assert done.returncode == 0, done.stderr
+    assert "n-butane (approximate, Peng–Robinson) from virtual gauge" in done.stderr
+    log = run_log(tmp_path)
+    assert log.metadata["config"]["custom-fluid"] == {"name": "n-butane", "Tc": 425.1, "pc": 3.796e6, "omega": 0.2,
+                                                      "M": pytest.approx(0.05812), "Tt": 134.9}
+    (path,) = (tmp_path / "logs").glob("run-*.csv")
+    command = [sys.executable, "-m", "tui.cli", "analyze", str(path), "--json"]
+    analysed = subprocess.run(command, cwd=tmp_path, env=environment(tmp_path), capture_output=True, text=True,
+                              timeout=120)
+    assert analysed.returncode == 0, analysed.stderr
+    assert strict_json(analysed.stdout)["fluid"] == "n-butane (approximate, Peng–Robinson)"
+    # replaying the log under watch keeps the custom fluid too
+    again = watch(tmp_path, str(path), "--headless", "--speed", "0")
+    assert again.returncode == 0, again.stderr
+    assert "n-butane (approximate, Peng–Robinson) from replay" in again.stderr
+
+
+def test_two_fluid_choices_are_refused(tmp_path):
+    done = watch(tmp_path, f"virtual:{FIXTURES / 'water-calm.toml'}", "--headless", "--fluid", "CO2",
+                 "--fluid-file", "x.toml")
+    assert done.returncode == 2 and "give exactly one of --fluid, --custom or --fluid-file" in done.stderr

@@ -23,7 +23,7 @@ from tui.analysis.summary import alarm_periods
 from tui.errors import UsageError
 from tui.monitor.batch import run_batch
 from tui.monitor.conditions import MARGIN_KINDS
-from tui.monitor.config import MonitorConfig, config_from_tree, load_config
+from tui.monitor.config import MonitorConfig, config_from_tree, load_config, named_fluid
 from tui.monitor.model import MARGINS, Event
 from tui.record.recorder import run_parts
 from tui.record.table import Table, read_table
@@ -101,7 +101,6 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     if len(table) == 0:
         raise UsageError(f"{log}: no readable sample (of {len(table.bad_lines)} data lines)")
     config = choose_config(args, table, log)
-    fluid_name = config.fluid
     quality = table.columns.get("quality")
     if quality is None:
         quality = plain_csv_quality(table["pressure_Pa"], table["temperature_K"])
@@ -115,12 +114,12 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
     result = run_batch(t, p, T, quality, config, t_wall=columns["t_wall"])
     others = {}
     for path in args.compare_config:
-        other = load_config(path, fluid=fluid_name)  # the same fluid: only the limits differ
+        other = load_config(path, fluid=config.thermo_fluid)  # the same fluid: only the limits differ
         progress.stage(f"replaying {log.name} under {Path(path).name}")
         others[path] = run_batch(t, p, T, quality, other).events
     run = AnalysedRun(
         source=str(log),
-        fluid=thermo.fluid(fluid_name).name,
+        fluid=config.thermo_fluid.name,
         t_s=t,
         pressure_Pa=p,
         temperature_K=T,
@@ -132,7 +131,7 @@ def load_run(log: Path, args: argparse.Namespace, progress) -> LoadedRun:
         bad_lines=tuple(BadLine(line, reason) for line, reason in table.bad_lines),
         out_of_order=int(in_order.size - in_order.sum()),
     )
-    return LoadedRun(run, thermo.fluid(fluid_name), config, others)
+    return LoadedRun(run, config.thermo_fluid, config, others)
 
 
 def plain_csv_quality(pressure_Pa: np.ndarray, temperature_K: np.ndarray) -> np.ndarray:
@@ -162,11 +161,13 @@ def reader_options(args: argparse.Namespace) -> dict:
     return {name: getattr(args, name) for name in names if getattr(args, name, None) is not None}
 
 
-def recorded_fluid(table: Table) -> str | None:
-    """The fluid a run log's metadata names (its configuration's, or a top-level key)."""
+def recorded_fluid(table: Table):
+    """The fluid a run log's metadata names (its configuration's: a name or a custom fluid;
+    or a top-level key)."""
     config = table.metadata.get("config")
-    if isinstance(config, dict) and isinstance(config.get("fluid"), str):
-        return config["fluid"]
+    named = named_fluid(config) if isinstance(config, dict) else None
+    if named is not None:
+        return named
     fluid = table.metadata.get("fluid")
     return fluid if isinstance(fluid, str) else None
 
@@ -187,9 +188,14 @@ def choose_config(args: argparse.Namespace, table: Table, log: Path) -> MonitorC
         named = bool(args.fluid or recorded)
     if not named:
         raise UsageError(f"{log}: the log does not say which fluid it holds; give --fluid (see `rigside fluids`)")
-    if args.fluid is None and recorded and thermo.fluid(config.fluid).name != thermo.fluid(recorded).name:
-        raise UsageError(f"configuration {args.config} is for {config.fluid} but {log} holds {recorded}; give --fluid to choose")
+    if args.fluid is None and recorded and config.thermo_fluid.name != _fluid_name(recorded):
+        raise UsageError(f"configuration {args.config} is for {config.fluid} but {log} holds {_fluid_name(recorded)}; give --fluid to choose")
     return config
+
+
+def _fluid_name(fluid) -> str:
+    """The display name of a fluid given by name or as a thermo fluid."""
+    return fluid.name if hasattr(fluid, "name") else thermo.fluid(fluid).name
 
 
 def _sets_fluid(path: str) -> bool:

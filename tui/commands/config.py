@@ -19,6 +19,8 @@ from tui.cli import SAFETY_NOTE
 
 
 def add_parser(subparsers) -> None:
+    from tui.commands.fluids import add_custom_fluid_arguments
+
     parser = subparsers.add_parser(
         "config",
         help="print the default monitor configuration, or check a file and print the effective one",
@@ -28,21 +30,24 @@ def add_parser(subparsers) -> None:
     parser.add_argument("file", nargs="?", metavar="FILE", help="a configuration file (TOML) to check")
     parser.add_argument("--default", action="store_true", help="print the documented default configuration")
     parser.add_argument("--fluid", help="the fluid (overrides the file's; brings that fluid's suited values)")
+    add_custom_fluid_arguments(parser)
 
 
 def run(args: argparse.Namespace) -> int:
+    from tui.commands.fluids import resolve_fluid
     from tui.errors import UsageError
     from tui.monitor.config import default_text, load_config, user_config_path
 
     if args.default:
-        if args.file or args.fluid:
-            raise UsageError("--default prints the default file as it is; give no FILE or --fluid with it")
+        if args.file or args.fluid or args.custom or args.fluid_file:
+            raise UsageError("--default prints the default file as it is; give no FILE or fluid with it")
         sys.stdout.write(default_text())
         return 0
     path = args.file
     if path is None and user_config_path().is_file():
         path = user_config_path()
-    config = load_config(path, fluid=args.fluid)
+    config = load_config(path, fluid=resolve_fluid(args, name_option="--fluid", required=False))
     sys.stdout.write(f"# effective monitor configuration ({config.origin}), SI units\n")
+    sys.stdout.write(f"# fluid: {config.thermo_fluid.name}\n")
     sys.stdout.write(config.to_toml())
     return 0

@@ -131,16 +131,24 @@ def range_text(fluid, p_unit: PressureUnit, T_unit: TemperatureUnit) -> str:
 def add_fluid_arguments(parser: argparse.ArgumentParser) -> None:
     """The FLUID argument and its two custom alternatives, shared by every command that needs a fluid."""
     parser.add_argument("fluid", nargs="?", metavar="FLUID", help="built-in fluid name or alias (see `rigside fluids`)")
+    add_custom_fluid_arguments(parser)
+
+
+def add_custom_fluid_arguments(parser: argparse.ArgumentParser) -> None:
+    """--custom and --fluid-file (for commands whose built-in fluid is an option, not FLUID)."""
     parser.add_argument("--custom", metavar="SPEC", help=f"a fluid not built in: {_CUSTOM_HELP} (approximate)")
     parser.add_argument("--fluid-file", metavar="FILE.toml", help="a custom fluid's constants in a TOML file (approximate)")
 
 
-def resolve_fluid(args: argparse.Namespace):
-    """The fluid chosen on the command line: exactly one of FLUID, --custom and --fluid-file."""
+def resolve_fluid(args: argparse.Namespace, *, name_option: str = "FLUID", required: bool = True):
+    """The fluid chosen on the command line: exactly one of FLUID (or `name_option`), --custom
+    and --fluid-file; None when none is given and none is `required`."""
     given = [option for option, value in
-             (("FLUID", args.fluid), ("--custom", args.custom), ("--fluid-file", args.fluid_file)) if value]
+             ((name_option, args.fluid), ("--custom", args.custom), ("--fluid-file", args.fluid_file)) if value]
+    if not given and not required:
+        return None
     if len(given) != 1:
-        raise UsageError(f"give exactly one of FLUID, --custom or --fluid-file (got {', '.join(given) or 'none'})")
+        raise UsageError(f"give exactly one of {name_option}, --custom or --fluid-file (got {', '.join(given) or 'none'})")
     if args.custom:
         return custom_fluid(_parse_custom_spec(args.custom), "--custom")
     if args.fluid_file:

@@ -38,6 +38,7 @@ variables and the active alarms in RIGSIDE_ACTIVE_ALARMS; its failures are logge
 
 def add_parser(subparsers) -> None:
     from tui.acquire import add_source_arguments
+    from tui.commands.fluids import add_custom_fluid_arguments
 
     parser = subparsers.add_parser(
         "watch",
@@ -50,6 +51,7 @@ def add_parser(subparsers) -> None:
                         help="serial device or pyserial URL (socket://, rfc2217://, loop://), modbus-tcp://, "
                              "a run log or CSV to replay, or virtual:SCENARIO")
     parser.add_argument("--fluid", help="the fluid (default: the configuration's, or the scenario's or log's)")
+    add_custom_fluid_arguments(parser)
     parser.add_argument("--config", metavar="FILE", help="monitor configuration (TOML; see `rigside config --default`)")
     parser.add_argument("--headless", action="store_true", help="no screen: status lines and events on stdout")
     parser.add_argument("--jsonl", action="store_true", help="headless, with every sample and event as JSON Lines")
@@ -91,7 +93,7 @@ def run(args: argparse.Namespace) -> int:
     if not headless:
         return _screen(source, config, recorder, monitors, hook)
     print(SAFETY_NOTE, file=sys.stderr)
-    print(f"rigside watch: {config.fluid} from {source.description}; configuration: {config.origin}; "
+    print(f"rigside watch: {config.thermo_fluid.name} from {source.description}; configuration: {config.origin}; "
           f"recording to {recorder.path}", file=sys.stderr)
     return _headless(args, source, config, recorder, monitors, hook)
 
@@ -125,27 +127,33 @@ class MonitorFactory:
 
 
 def _config(args, source):
+    from tui.commands.fluids import resolve_fluid
     from tui.monitor.config import load_config, user_config_path
 
     path = args.config
     if path is None and user_config_path().is_file():
         path = user_config_path()
-    return load_config(path, fluid=args.fluid, fallback_fluid=_source_fluid(source))
+    fluid = resolve_fluid(args, name_option="--fluid", required=False)
+    return load_config(path, fluid=fluid, fallback_fluid=_source_fluid(source))
 
 
-def _source_fluid(source) -> str | None:
-    """The fluid a virtual scenario or a replayed run log names, if any."""
+def _source_fluid(source):
+    """The fluid a virtual scenario or a replayed run log names (a name or a custom fluid), if any."""
+    from tui.monitor.config import named_fluid
+
     scenario = getattr(source, "scenario", None)
     if scenario is not None:
         return scenario.fluid
     table = getattr(source, "table", None)
-    return (getattr(table, "metadata", None) or {}).get("config", {}).get("fluid")
+    recorded = (getattr(table, "metadata", None) or {}).get("config")
+    return named_fluid(recorded) if isinstance(recorded, dict) else None
 
 
 def _recorder(args, source, config):
     from tui.record import RunRecorder
 
-    metadata = {"command": "watch", "source": source.description, "fluid": config.fluid, "config": config.to_json()}
+    metadata = {"command": "watch", "source": source.description, "fluid": config.thermo_fluid.name,
+                "config": config.to_json()}
     return RunRecorder(Path(args.log_dir) if args.log_dir else default_log_dir(), metadata)
 
 

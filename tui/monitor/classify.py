@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import numpy as np
 
-import thermo
 from tui.monitor.config import MonitorConfig
 from tui.monitor.frame import CLASSIFIABLE
 from tui.monitor.model import MARGINS, UNCLASSIFIED
@@ -22,7 +21,7 @@ class Classifier:
     """Phase labels and MARGINS of arrays of states of one fluid."""
 
     def __init__(self, config: MonitorConfig):
-        self.fluid = thermo.fluid(config.fluid)
+        self.fluid = config.thermo_fluid
         self.u_T = config.u_temperature_K
         self.u_p, self.u_p_fraction = config.u_pressure_Pa, config.u_pressure_fraction
 

@@ -27,9 +27,13 @@ from thermo.units import (
     TemperatureUnit,
     UnitError,
     parse_atmosphere,
+    parse_molar_mass,
+    parse_pressure,
     parse_pressure_difference,
+    parse_temperature,
     parse_temperature_difference,
 )
+from thermo.solid import MissingCurve
 from tui.acquire.sample import Quality
 from tui.errors import UsageError
 from tui.jsontext import dumps
@@ -189,6 +193,13 @@ class _Qualities(_Kind):
         return list(dict.fromkeys(value))
 
 
+class _Signed(_Kind):
+    """A plain number, negative too (an acentric factor may be)."""
+
+    def read(self, value, key):
+        return _number(value, key, "a plain number")
+
+
 _DURATION_KIND = _Quantity("s", _parse_duration, "90 s")
 _KELVIN = _Quantity("K", parse_temperature_difference, "2 K")
 _PLAIN = _Quantity("", float, "0.05")
@@ -232,7 +243,19 @@ SECTION_KEYS: dict[str, dict[str, _Kind]] = {
     "trend": {"window": _DURATION_KIND, "bins": _Count(3)},
     "flood": {"alarms": _Count(1), "window": _DURATION_KIND, "end_alarms": _Count(1)},
     "shelve": {"default_duration": _DURATION_KIND, "max_duration": _DURATION_KIND},
+    # a fluid not built in (Peng-Robinson with Lee-Kesler vapor pressure, approximate): the keys
+    # of `rigside fluids`' --custom and --fluid-file; a run log records them in SI
+    "custom-fluid": {
+        "name": _Text(),
+        "Tc": _Quantity("K", parse_temperature, "425.1 K"),
+        "pc": _Quantity("Pa", parse_pressure, "37.96 bar"),
+        "omega": _Signed(),
+        "M": _Quantity("kg/mol", parse_molar_mass, "58.12 g/mol"),
+        "Tt": _Quantity("K", parse_temperature, "134.9 K"),
+    },
 }
+#: the keys a custom fluid must have
+CUSTOM_REQUIRED = ("Tc", "pc", "omega", "M")
 
 
 # ---------------------------------------------------------------------------------------------
@@ -285,6 +308,8 @@ class MonitorConfig:
     """Where the person's layer came from: a path, or "defaults"."""
     layer: Mapping = field(default_factory=dict)
     """The person's layer as read (file or recorded tree), for rebuilding with another fluid."""
+    thermo_fluid: object = None
+    """The thermo fluid: the built-in one `fluid` names, or the custom (approximate) one."""
 
     def for_fluid(self, name: str) -> MonitorConfig:
         """The same configuration for another fluid (with that fluid's suited values)."""
@@ -299,13 +324,13 @@ class MonitorConfig:
         return json.loads(dumps(self.effective))
 
 
-def load_config(path: str | os.PathLike | None = None, *, fluid: str | None = None,
-                fallback_fluid: str | None = None) -> MonitorConfig:
+def load_config(path: str | os.PathLike | None = None, *, fluid=None, fallback_fluid=None) -> MonitorConfig:
     """The effective configuration: defaults, fluid-suited values, the file at `path`, then `fluid`.
 
-    `fallback_fluid` (e.g. the fluid a scenario or a replayed log names) applies when neither
-    `fluid` nor the file names one. Raises UsageError with a one-line message naming the
-    file and key for any bad input.
+    `fluid` and `fallback_fluid` are a fluid's name or a thermo fluid (a custom one is
+    recorded in the configuration's `custom-fluid` table). `fallback_fluid` (e.g. the fluid a
+    scenario or a replayed log names) applies when neither `fluid` nor the file names one.
+    Raises UsageError with a one-line message naming the file and key for any bad input.
     """
     own = _read_file(path) if path is not None else {}
     return config_from_tree(own, str(path) if path is not None else "defaults", fluid=fluid, fallback_fluid=fallback_fluid)
@@ -317,11 +342,14 @@ def config_from_tree(own: dict, where: str, *, fluid: str | None = None, fallbac
     defaults = tomllib.loads(default_text())
     try:
         _check_tree(own, "")
-        chosen = fluid or own.get("fluid") or fallback_fluid or defaults["fluid"]
+        names_fluid = "fluid" in own or "custom-fluid" in own
+        own = _with_fluid(own, fluid if fluid is not None else None if names_fluid else fallback_fluid)
+        custom = "custom-fluid" in own
+        chosen = _custom_name(own) if custom else own.get("fluid") or defaults["fluid"]
         layers = [
             _without_fluid_defaults(defaults),
-            _fluid_layer(defaults, chosen),
-            _fluid_layer(own, chosen),
+            {} if custom else _fluid_layer(defaults, chosen),
+            {} if custom else _fluid_layer(own, chosen),
             _without_fluid_defaults(own),
             {"fluid": chosen},
         ]
@@ -329,6 +357,63 @@ def config_from_tree(own: dict, where: str, *, fluid: str | None = None, fallbac
         return _build(effective, where, own)
     except UsageError as exc:
         raise UsageError(f"configuration {where}: {exc}") from None
+
+
+def _with_fluid(own: dict, fluid) -> dict:
+    """The person's layer with `fluid` (a name or a thermo fluid; None: as it is) chosen:
+    a name replaces any custom fluid, a custom fluid goes in as its `custom-fluid` table."""
+    if fluid is None:
+        return own
+    rest = {key: value for key, value in own.items() if key not in ("fluid", "custom-fluid")}
+    if getattr(fluid, "approximate", False):
+        return rest | {"custom-fluid": custom_fluid_table(fluid)}
+    return rest | {"fluid": getattr(fluid, "key", fluid)}
+
+
+def custom_fluid_table(fluid) -> dict:
+    """A custom (approximate) thermo fluid's constants, in SI, as a `custom-fluid` table."""
+    table = {"name": fluid.key, "Tc": fluid.critical.T, "pc": fluid.critical.p, "omega": fluid.eos.omega,
+             "M": fluid.molar_mass}
+    known_solid = not isinstance(fluid.solid.melting, MissingCurve)  # a triple point was given
+    return table | ({"Tt": fluid.triple.T} if known_solid else {})
+
+
+def _custom_name(own: dict) -> str:
+    """The custom fluid's name; a `fluid` key beside `custom-fluid` must agree with it."""
+    table = own["custom-fluid"]
+    missing = [key for key in CUSTOM_REQUIRED if key not in table]
+    if missing:
+        raise UsageError(f"custom-fluid: missing {', '.join(missing)} (keys: {', '.join(SECTION_KEYS['custom-fluid'])})")
+    name = table.get("name", "custom fluid")
+    if own.get("fluid", name) != name:
+        raise UsageError(f"fluid = {own['fluid']!r} and custom-fluid.name = {name!r}: name one fluid")
+    return name
+
+
+def named_fluid(tree: Mapping):
+    """The fluid a configuration tree names (e.g. the one a run log recorded): the thermo
+    custom fluid of its `custom-fluid` table, else its `fluid` name, else None."""
+    table = tree.get("custom-fluid")
+    if table is None:
+        return tree.get("fluid") if isinstance(tree.get("fluid"), str) else None
+    try:
+        _check_section(table, "custom-fluid", SECTION_KEYS, "custom-fluid")
+        _custom_name({"custom-fluid": table})
+    except UsageError as exc:
+        raise UsageError(f"recorded configuration: {exc}") from None
+    kinds = SECTION_KEYS["custom-fluid"]
+    return _custom_fluid({key: kinds[key].read(value, key) for key, value in table.items()})
+
+
+def _custom_fluid(table: Mapping):
+    """The thermo fluid of a normalised `custom-fluid` table."""
+    import thermo
+
+    try:
+        return thermo.custom_fluid(table.get("name", "custom fluid"), table["Tc"], table["pc"], table["omega"],
+                                   table["M"], table.get("Tt"))
+    except ValueError as exc:
+        raise UsageError(f"custom-fluid: {exc}") from None
 
 
 def _read_file(path) -> dict:
@@ -349,8 +434,8 @@ def _check_tree(tree: dict, prefix: str) -> None:
         elif key == "fluid-defaults" and not prefix:
             for name, fragment in _table(value, key).items():
                 inner = _table(fragment, f"{key}.{name}")
-                if "fluid" in inner or "fluid-defaults" in inner:
-                    raise UsageError(f"{key}.{name}: may not set fluid or fluid-defaults")
+                if {"fluid", "fluid-defaults", "custom-fluid"} & set(inner):
+                    raise UsageError(f"{key}.{name}: may not set fluid, fluid-defaults or custom-fluid")
                 _check_tree(inner, f"{key}.{name}.")
         elif key == "conditions":
             for name, settings in _table(value, f"{prefix}{key}").items():
@@ -420,6 +505,8 @@ def _normalise(tree: dict) -> dict:
     for section, kinds in SECTION_KEYS.items():
         given = tree.get(section, {})
         out[section] = {key: kinds[key].read(given[key], f"{section}.{key}") for key in kinds if key in given}
+    if not out["custom-fluid"]:
+        del out["custom-fluid"]
     out["conditions"] = {}
     for name, kinds in CONDITION_KEYS.items():
         given = tree["conditions"][name]
@@ -464,7 +551,14 @@ def _build(tree: dict, origin: str, layer: dict) -> MonitorConfig:
         effective=tree,
         origin=origin,
         layer=layer,
+        thermo_fluid=_custom_fluid(tree["custom-fluid"]) if "custom-fluid" in tree else _builtin(tree["fluid"]),
     )
+
+
+def _builtin(name: str):
+    import thermo
+
+    return thermo.fluid(name)
 
 
 def _condition(name: str, given: dict) -> ConditionSettings:

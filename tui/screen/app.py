@@ -52,7 +52,7 @@ class RigsideApp(App):
         self._switch_interval = sys.getswitchinterval()
         sys.setswitchinterval(THREAD_SWITCH_S)
         self.push_screen(MonitorScreen())
-        self.compute_curves(self.session.fluid.key)
+        self.compute_curves(self.session.fluid)
         self.run_pipeline()
 
     # ------------------------------------------------------------ workers
@@ -64,8 +64,8 @@ class RigsideApp(App):
         self.post_message(PipelineStopped())
 
     @work(thread=True, exclusive=True, group="curves")
-    def compute_curves(self, name: str) -> None:
-        self.post_message(CurvesReady(fluid_curves(thermo.fluid(name))))
+    def compute_curves(self, fluid) -> None:
+        self.post_message(CurvesReady(fluid_curves(fluid)))
 
     def on_unmount(self) -> None:
         self.session.stop()
@@ -116,7 +116,7 @@ class RigsideApp(App):
             if key and key != self.session.fluid.key:
                 self.session.switch_fluid(key)
                 self.curves = None
-                self.compute_curves(key)
+                self.compute_curves(self.session.fluid)
 
         choices = [(key, thermo.fluid(key).name) for key in thermo.fluids()]
         self.push_screen(FluidPicker(choices, self.session.fluid.key), picked)

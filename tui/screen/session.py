@@ -108,7 +108,7 @@ class Session:
         self._make_monitor = make_monitor
         self.monitor = make_monitor(config)
         self.recorder = recorder
-        self.fluid = thermo.fluid(config.fluid)
+        self.fluid = config.thermo_fluid
         self.replay = ReplayControl(source) if hasattr(source, "seek") else None
         self.atmosphere_Pa = getattr(source, "atmosphere_Pa", None)
         self.feed = LiveFeed(fluid=self.fluid.name, source=label or source.description, limits=margin_limits(config))
