@@ -141,3 +141,15 @@ def test_simulate_rejects_a_profile_it_cannot_speak():
     child = simulate("view-cell", "--profile", "fixtures/profiles/two-device.toml")
     _, err = child.communicate(timeout=20)
     assert child.returncode == 2 and err.strip().endswith("choose one with --device pressure|temperature")
+
+
+@pytest.mark.parametrize(
+    ("args", "message"),
+    [(("--tcp", "99999"), "--tcp must be a port number from 0"), (("--speed", "nan"), "--speed must be 0")],
+)
+def test_simulate_refuses_a_bad_port_or_speed_before_it_speaks(args, message, capsys):
+    from tui.cli import main
+
+    assert main(["simulate", "view-cell", *args]) == 2
+    out, err = capsys.readouterr()
+    assert out == "" and message in err and err.count("\n") == 1

@@ -41,11 +41,13 @@ def add_parser(subparsers) -> None:
 
 
 def run(args) -> int:
+    if not args.speed >= 0:  # also refuses NaN
+        raise UsageError(f"--speed must be 0 (as fast as possible) or positive, got {args.speed:g}")
+    if args.tcp is not None and not 0 <= args.tcp <= 65535:
+        raise UsageError(f"--tcp must be a port number from 0 (any free port) to 65535, got {args.tcp}")
     scenario = load_scenario(args.scenario)
     if args.loop:
         scenario = replace(scenario, loop=True)
-    if args.speed < 0:
-        raise UsageError(f"--speed must be 0 (as fast as possible) or positive, got {args.speed:g}")
     profile = load_profile(args.profile) if args.profile else None
     if profile is not None and profile.devices:
         if args.device is None:
