@@ -60,6 +60,19 @@ def test_water_stays_liquid_below_0_C_under_pressure():
     assert c.phase == "liquid" and float(c.dT_solid) == pytest.approx(260.0 - 252.32, abs=0.01)
 
 
+def test_liquid_water_beside_the_ices_is_inside_the_range_of_iapws_95():
+    """IAPWS-95 is valid in the whole stable fluid region from the melting-pressure curve (Wagner &
+    Pruss 2002, from memory): compressed liquid below 273.16 K is not extrapolated; water vapor
+    under the sublimation curve (IAPWS R14-08) still is, as CO2 vapor at a vent is."""
+    water = fluid("water")
+    c = water.classify(np.array([260.0, 268.0, 250.0, 230.0]), np.array([200e6, 100e6, 50.0, 5.0]))
+    assert c.phase.tolist() == ["liquid", "liquid", "vapor", "vapor"]
+    assert c.extrapolated.tolist() == [False, False, True, True]
+    assert water.classify(260.0, 100e6).phase == "solid"  # ice Ih melts at 138.3 MPa at 260 K (IAPWS R14-08)
+    vent = CO2.classify(203.15, ATM)  # common practice: CO2 vapor at 1 atm, -70 C
+    assert vent.phase == "vapor" and vent.extrapolated
+
+
 def test_states_on_special_points():
     Tc, pc = CO2.critical.T, CO2.critical.p
     Tt, pt = CO2.triple

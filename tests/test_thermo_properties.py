@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import warnings
+
 import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
@@ -192,11 +194,17 @@ def test_cold_vapor_below_the_triple_point_is_extrapolated():
 
 def test_liquid_water_beside_ice_below_the_triple_point():
     """Under pressure water stays liquid below 273.16 K down to the ice Ih melting curve (IAPWS
-    R14-08); CoolProp (reference library) gives the same density there."""
-    props = fluid("H2O").properties(np.array([260.0, 260.0]), np.array([200e6, 100e6]))
-    assert props["density"][0] == pytest.approx(CP.PropsSI("D", "T", 260.0, "P", 200e6, "Water"), rel=1e-10)
-    assert props["extrapolated"].tolist() == [True, False]
-    assert np.isnan(props["density"][1])  # ice Ih: it melts at about 140 MPa at 260 K
+    R14-08), inside the range of IAPWS-95, which runs from the melting-pressure curve (Wagner &
+    Pruss 2002, from memory). CoolProp and iapws (reference libraries) give the same density."""
+    T, p = np.array([260.0, 268.0, 260.0]), np.array([200e6, 100e6, 100e6])
+    props = fluid("H2O").properties(T, p)
+    for i in range(2):
+        assert props["density"][i] == pytest.approx(CP.PropsSI("D", "T", T[i], "P", p[i], "Water"), rel=1e-10)
+        with warnings.catch_warnings():  # iapws warns below 273.16 K whatever the pressure
+            warnings.simplefilter("ignore", UserWarning)
+            assert props["density"][i] == pytest.approx(IAPWS95(T=T[i], P=p[i] / 1e6).rho, rel=1e-9)
+    assert props["extrapolated"].tolist() == [False, False, False]
+    assert np.isnan(props["density"][2])  # ice Ih: it melts at about 138 MPa at 260 K
 
 
 def test_solid_states_give_nan():

@@ -11,8 +11,10 @@ temperature of the solid curves unless the curves show the state is solid there.
 
 Vapor below the triple-point temperature, under the sublimation curve, is ``vapor`` (a CO2 vent
 passes through such states) with ``extrapolated`` set: the equation of state's stated range
-starts at T_t. ``approximate`` marks answers that rest on a fallback solid curve (no published
-equation) or on a custom, approximate fluid.
+starts at T_t. ``extrapolated`` follows each equation's stated range (``thermo.fluid.Range``):
+IAPWS-95 covers the whole stable fluid region from the melting curve, so liquid water under
+pressure beside the ices below 273.16 K is in range. ``approximate`` marks answers that rest on
+a fallback solid curve (no published equation) or on a custom, approximate fluid.
 
 Margins (NaN where undefined):
 
@@ -60,9 +62,9 @@ class Classification:
 def classify(fluid, T, p, u_T=0.0, u_p=0.0, *, k: float = K_COVERAGE) -> Classification:
     """Classify states of ``fluid`` at T [K], p [Pa] with standard uncertainties u_T [K], u_p [Pa].
 
-    All four broadcast together; any shape. ``fluid`` needs critical, range (T_max, p_max,
-    T_min), saturation (pressure(T), temperature(p), dpdT(T) and its ends T_min, T_max, p_min,
-    p_max, the lower end being the triple point), solid (a ``thermo.solid.SolidCurves`` joined
+    All four broadcast together; any shape. ``fluid`` needs critical, range (T_max, p_max and
+    ``extrapolated``), saturation (pressure(T), temperature(p), dpdT(T) and its ends T_min,
+    T_max, p_min, p_max, the lower end being the triple point), solid (a ``thermo.solid.SolidCurves`` joined
     there) and approximate, as ``thermo.Fluid`` and custom fluids have.
 
     >>> from thermo import fluid
@@ -130,7 +132,7 @@ def _classify_block(fluid, T, p, u_T, u_p, k):
                          (OUT_OF_RANGE, ~inside)):
         code = np.maximum(code, where.view(np.uint8) * np.uint8(label))  # not in place: cheaper on small chunks
 
-    extrapolated = inside & (T < fluid.range.T_min) & (code != SOLID)
+    extrapolated = inside & fluid.range.extrapolated(T, p, p_t) & (code != SOLID)
     if fluid.approximate:
         approximate = inside
     elif solid.melting_published and solid.sublimation_published:

@@ -42,9 +42,20 @@ class Triple(NamedTuple):
 
 
 class Range(NamedTuple):
+    """The fluid region an equation of state is stated to cover (its source's own words)."""
+
     T_min: float  #: lowest temperature of the equation's stated range [K]
     T_max: float  #: highest temperature [K]
     p_max: float  #: highest pressure [Pa]
+    #: the range starts at the melting curve rather than at T_min for every fluid state above
+    #: the triple-point pressure (IAPWS-95: liquid water beside the ices below 273.16 K)
+    from_melting_curve: bool = False
+
+    def extrapolated(self, T, p, p_triple: float):
+        """Where a fluid state at T [K], p [Pa] lies outside the stated range by temperature:
+        colder than T_min, unless the range runs from the melting curve and p >= p_triple [Pa]."""
+        cold = T < self.T_min
+        return cold & (p < p_triple) if self.from_melting_curve else cold
 
 
 def _data_dir():
@@ -118,7 +129,7 @@ class Fluid:
         c, t, r = data["critical"], data["triple"], data["range"]
         self.critical = Critical(float(c["T"]), float(c["p"]), float(c["rho"]))
         self.triple = Triple(float(t["T"]), float(t["p"]))
-        self.range = Range(float(r["T_min"]), float(r["T_max"]), float(r["p_max"]))
+        self.range = Range(float(r["T_min"]), float(r["T_max"]), float(r["p_max"]), bool(r.get("from_melting_curve")))
         self.eos = HelmholtzEOS(data)
         self.source: str = self.eos.source
         self._data = data
@@ -228,12 +239,12 @@ class Fluid:
     def _domain(self, T: np.ndarray, p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(fluid, extrapolated): states in the equation's pressure and temperature range that are
         not solid (warmer than T_solid(p), down to the lowest temperature of the solid curves), and
-        those of them colder than the range's T_min, where the equation is extrapolated (vapor under
-        the sublimation curve; liquid water under pressure beside ice Ih)."""
+        those of them outside the equation's stated range (``Range.extrapolated``: vapor under the
+        sublimation curve; for water not the liquid beside the ices, IAPWS-95 covers it)."""
         inside = (p > 0) & (p <= self.range.p_max) & (T <= self.range.T_max) & (T >= self.solid.T_min)
         with np.errstate(invalid="ignore"):
             inside &= ~(T < self.solid.solid_temperature(p)) & ~(p > self.solid.p_top)
-        return inside, inside & (T < self.range.T_min)
+        return inside, inside & self.range.extrapolated(T, p, self.solid.triple[1])
 
     def _solve_chunk(self, T: np.ndarray, p: np.ndarray, prepared=None) -> np.ndarray:
         """Density [mol/m3] of one chunk of 1-D fluid states (``prepared``: tau factors, if kept).
@@ -266,7 +277,7 @@ class Fluid:
 
         Keys: density [kg/m3], molar_volume [m3/mol], Z [-], alpha_p [1/K], kappa_T [1/Pa],
         cp, cv [J/(kg K)], speed_of_sound [m/s], enthalpy [J/kg], entropy [J/(kg K)] and
-        extrapolated [bool] (fluid colder than the stated range's T_min). NaN where ``density``
+        extrapolated [bool] (fluid outside the stated range, ``Range.extrapolated``). NaN where ``density``
         is NaN. Formulas: ``thermo.eos.HelmholtzEOS.state``.
 
         >>> water = fluid("water").properties(300.0, 0.992418352e5)  # IAPWS-95 Table 7 (from memory)
