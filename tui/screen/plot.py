@@ -29,6 +29,10 @@ INK_ROLES = {
     TRAIL_NEW: "trail-new",
 }
 
+#: every role a run can take: the inks' (by ink number), then the overlays' and the axes'
+ROLES = (*INK_ROLES.values(), "region", "point", "now", "now-alarm", "axis")
+_ROLE_INDEX = {role: index for index, role in enumerate(ROLES)}
+
 NOW_GLYPH = "●"
 CRITICAL_GLYPH = "◆"
 TRIPLE_GLYPH = "▲"
@@ -150,17 +154,16 @@ class _Picture:
                 self.overlay[(col + offset, row)] = (char, "region")
 
     def rows(self) -> list[Row]:
+        """Each row as runs of one role: the cells are joined and cut by numpy, not one by one."""
         chars, inks = self.canvas.cells()
+        roles = inks.astype(np.intp)
+        for (c, r), (glyph, role) in self.overlay.items():
+            chars[r, c], roles[r, c] = glyph, _ROLE_INDEX[role]
         rows: list[Row] = []
-        for r in range(self.canvas.height):
-            runs: Row = []
-            for c in range(self.canvas.width):
-                text, role = self.overlay.get((c, r), (chars[r, c], INK_ROLES[int(inks[r, c])]))
-                if runs and runs[-1][1] == role:
-                    runs[-1] = (runs[-1][0] + text, role)
-                else:
-                    runs.append((text, role))
-            rows.append(runs)
+        for row_chars, row_roles in zip(chars, roles):
+            text = "".join(row_chars.tolist())
+            cuts = [0, *(np.flatnonzero(row_roles[1:] != row_roles[:-1]) + 1).tolist(), len(text)]
+            rows.append([(text[a:b], ROLES[row_roles[a]]) for a, b in zip(cuts, cuts[1:])])
         return rows
 
 

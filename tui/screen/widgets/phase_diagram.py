@@ -6,12 +6,13 @@ from dataclasses import replace
 from typing import ClassVar
 
 from rich.segment import Segment
+from textual.geometry import Region
 from textual.reactive import reactive
 from textual.strip import Strip
 from textual.widget import Widget
 
 from tui.screen.curves import FluidCurves
-from tui.screen.plot import INK_ROLES, LEGENDS, DiagramState, draw
+from tui.screen.plot import LEGENDS, ROLES, DiagramState, draw
 
 VIEW_TITLES = {"pT": "p–T", "pv": "p–v"}
 ZOOM_TITLES = {"whole": "whole range", "near": "near now"}
@@ -20,9 +21,7 @@ ZOOM_TITLES = {"whole": "whole range", "near": "near now"}
 class PhaseDiagram(Widget):
     """Draws `FluidCurves` with the live state, trail and alarm bands; look in app.tcss."""
 
-    COMPONENT_CLASSES: ClassVar[set[str]] = {
-        f"diagram--{role}" for role in (*INK_ROLES.values(), "axis", "region", "point", "now", "now-alarm")
-    }
+    COMPONENT_CLASSES: ClassVar[set[str]] = {f"diagram--{role}" for role in ROLES}
 
     DEFAULT_CSS = """
     PhaseDiagram { height: 1fr; min-height: 8; }
@@ -42,11 +41,21 @@ class PhaseDiagram(Widget):
         self._update_titles()
 
     def show(self, curves: FluidCurves | None, state: DiagramState, T_unit, p_unit) -> None:
-        """Redraw with new data (the view and zoom come from this widget's reactives)."""
+        """Redraw with new data (the view and zoom come from this widget's reactives); only the
+        rows that changed are repainted, since most of the diagram stands still between samples."""
         self._curves = curves
         self._state = state
         self._units = (T_unit, p_unit)
-        self._invalidate()
+        before = self._lines
+        self._lines = None
+        after = self._render_strips()
+        if before is None or len(before) != len(after):
+            self.refresh()
+            return
+        width = self.size.width
+        changed = [Region(0, y, width, 1) for y, (old, new) in enumerate(zip(before, after)) if old != new]
+        if changed:
+            self.refresh(*changed)
 
     def watch_view(self) -> None:
         self._update_titles()
@@ -59,6 +68,11 @@ class PhaseDiagram(Widget):
     def on_resize(self) -> None:
         self._invalidate()
 
+    def notify_style_update(self) -> None:
+        """The styles of the rows were baked into them: draw again with the new ones."""
+        super().notify_style_update()
+        self._invalidate()
+
     def _invalidate(self) -> None:
         self._lines = None
         self.refresh()
@@ -66,11 +80,6 @@ class PhaseDiagram(Widget):
     def _update_titles(self) -> None:
         self.border_title = f"{VIEW_TITLES[self.view]} · {ZOOM_TITLES[self.zoom]}"
         self.border_subtitle = LEGENDS[self.view]
-
-    @property
-    def drawn(self) -> bool:
-        """Whether the latest data, view and zoom have been drawn."""
-        return self._lines is not None
 
     @property
     def text(self) -> str:
@@ -88,10 +97,8 @@ class PhaseDiagram(Widget):
             return self._lines
         state = replace(self._state, view=self.view, zoom=self.zoom)
         rows = draw(self._curves, state, width, height, *self._units)
-        self._lines = [
-            Strip([Segment(text, self.get_component_rich_style(f"diagram--{role}")) for text, role in row])
-            for row in rows
-        ]
+        styles = {role: self.get_component_rich_style(f"diagram--{role}") for role in ROLES}
+        self._lines = [Strip([Segment(text, styles[role]) for text, role in row]) for row in rows]
         return self._lines
 
     def render_line(self, y: int) -> Strip:
