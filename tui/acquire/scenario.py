@@ -89,11 +89,6 @@ class Scenario:
         """Samples in one pass of the scenario."""
         return int(math.floor(self.duration * self.rate_hz)) + 1
 
-    def label_at(self, t: float) -> str:
-        """What the scenario is doing at time t (the segment's label)."""
-        i = int(np.searchsorted(self.knot_t, t % self.duration if self.loop else t, "right")) - 1
-        return self.labels[min(max(i, 0), len(self.labels) - 1)] if self.labels else ""
-
     def frames(self, k0: int, k1: int) -> Frames:
         """Samples k0 <= k < k1 (beyond the end: wrap if looping, else nothing)."""
         if not self.loop:

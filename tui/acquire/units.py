@@ -45,12 +45,3 @@ def temperature_map(text: str) -> LinearMap:
     unit = TemperatureUnit.from_text(text)
     return LinearMap(unit.scale, unit.offset * unit.scale)
 
-
-def pressure_difference_scale(text: str) -> float:
-    """Pascal per unit of a pressure difference (a span width, a resolution, a rate)."""
-    return PressureUnit.from_text(text).factor
-
-
-def temperature_difference_scale(text: str) -> float:
-    """Kelvin per degree of a temperature difference."""
-    return TemperatureUnit.from_text(text).scale
