@@ -185,6 +185,18 @@ def test_carbon_dioxide_triple_and_critical_points():
     assert 55e5 < co2.saturation_pressure(293.15) < 65e5
 
 
+@pytest.mark.parametrize("key", fluids())
+def test_triple_point_is_where_the_saturation_curve_starts(key):
+    """Fluid.triple is the one triple point of classify, the saturation curve and the solid curves;
+    its pressure is within the equation's tolerance of the published one in the data file
+    (CoolProp's triple pressure, reference library: propane 0.12 %, ammonia 0.04 %)."""
+    f = fluid(key)
+    assert f.triple.T == f.saturation.T_min == f.solid.triple[0]
+    assert f.triple.p == f.saturation.p_min == f.solid.triple[1] == f.saturation_pressure(f.triple.T)
+    assert f.triple.p == pytest.approx(load_data(key)["triple"]["p"], rel=2e-3)
+    assert f.classify(f.triple.T, f.triple.p).phase == "triple"
+
+
 def test_water_boils_at_100_degc_under_one_atmosphere():
     # IAPWS-95 (from memory): normal boiling point 373.124 K at 101.325 kPa; common practice: 100 degC
     assert fluid("water").saturation_temperature(101325.0) == pytest.approx(373.124, abs=1e-3)

@@ -37,8 +37,13 @@ class Critical(NamedTuple):
 
 
 class Triple(NamedTuple):
+    """The triple point as the equations of a fluid see it: T from the data file, p the equation
+    of state's own vapor pressure there, where the saturation curve starts and the solid curves
+    are joined (one source of truth for classify and every caller). The published triple
+    pressure in the data file differs by the equation's tolerance (propane 0.12 %, ammonia 0.04 %)."""
+
     T: float  #: triple-point temperature [K]
-    p: float  #: triple-point pressure [Pa]
+    p: float  #: triple-point pressure [Pa]: p_sat(T) of the saturation curve
 
 
 class Range(NamedTuple):
@@ -128,7 +133,6 @@ class Fluid:
         self.molar_mass: float = float(data["molar_mass"])  #: [kg/mol]
         c, t, r = data["critical"], data["triple"], data["range"]
         self.critical = Critical(float(c["T"]), float(c["p"]), float(c["rho"]))
-        self.triple = Triple(float(t["T"]), float(t["p"]))
         self.range = Range(float(r["T_min"]), float(r["T_max"]), float(r["p_max"]), bool(r.get("from_melting_curve")))
         self.eos = HelmholtzEOS(data)
         self.source: str = self.eos.source
@@ -139,6 +143,15 @@ class Fluid:
 
     def __repr__(self) -> str:
         return f"fluid({self.key!r})"
+
+    @functools.cached_property
+    def triple(self) -> Triple:
+        """Triple point (T [K], p [Pa]); p is where the saturation curve starts (see ``Triple``).
+
+        >>> round(fluid("CO2").triple.p / 1e6, 5)  # Span & Wagner (1996), Table 3, print 0.51795 MPa
+        0.51796
+        """
+        return Triple(float(self._data["triple"]["T"]), float(self.saturation.p_min))
 
     @functools.cached_property
     def saturation(self) -> SaturationCurve:
@@ -182,8 +195,8 @@ class Fluid:
     @functools.cached_property
     def solid(self) -> SolidCurves:
         """Melting and sublimation curves with sources and fallback flags, joined at the triple point."""
-        triple = (self.triple.T, float(self.saturation.p_min))  # where the saturation curve starts
-        return SolidCurves.from_data(self._data, triple=triple, vaporization_enthalpy=self._triple_vaporization_enthalpy)
+        return SolidCurves.from_data(self._data, triple=tuple(self.triple),
+                                     vaporization_enthalpy=self._triple_vaporization_enthalpy)
 
     def _triple_vaporization_enthalpy(self) -> float:
         """h_vapor - h_liquid [J/mol] from the equation of state at the triple-point densities of the data file."""
