@@ -148,6 +148,7 @@ def test_fluid_file_gives_the_same_fluid_as_custom(capsys, tmp_path):
         (["CO2", "--custom", BUTANE], "exactly one of FLUID, --custom or --fluid-file"),
         ([], "exactly one of FLUID"),
         (["--fluid-file", "/nonexistent/butane.toml"], "No such file"),
+        (["--fluid", "CO2"], "cannot read --fluid-file 'CO2': No such file or directory (a built-in fluid is given as FLUID"),
     ],
 )
 def test_bad_custom_fluids_are_named(capsys, argv, problem):

@@ -167,11 +167,15 @@ def _parse_custom_spec(spec: str) -> dict[str, str]:
 
 
 def _read_fluid_file(path: str) -> dict:
+    """The TOML table of --fluid-file (argparse also takes `--fluid NAME` for it: the hint says so)."""
     try:
         with open(path, "rb") as handle:
             return tomllib.load(handle)
-    except tomllib.TOMLDecodeError as exc:
-        raise UsageError(f"fluid file {path}: not valid TOML ({exc})") from exc
+    except OSError as exc:
+        raise UsageError(f"cannot read --fluid-file {path!r}: {exc.strerror or exc} "
+                         "(a built-in fluid is given as FLUID, without an option)") from None
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise UsageError(f"fluid file {path}: not valid TOML ({exc})") from None
 
 
 def custom_fluid(entries: dict, origin: str):
