@@ -142,8 +142,8 @@ class ChebyshevPieces:
         with np.errstate(divide="ignore"):
             digits = 17 + np.floor(np.log10(np.abs(self.coefficients) / scale))
         digits = np.clip(np.nan_to_num(digits, neginf=1.0), 1, 17).astype(int)
-        rows = [[float(f"{c:.{n - 1}e}") for c, n in zip(row, row_digits)]
-                for row, row_digits in zip(self.coefficients, digits)]
+        rows = [[float(f"{c:.{n - 1}e}") for c, n in zip(row, row_digits, strict=True)]
+                for row, row_digits in zip(self.coefficients, digits, strict=True)]
         return {"edges": self.edges.tolist(), "coefficients": rows}
 
     @classmethod
@@ -176,13 +176,13 @@ def fit_pieces(f: Callable[[np.ndarray], np.ndarray], a: float, b: float, *, deg
         values = np.asarray(f(np.concatenate([nodes, checks], axis=1)), float)
         c = coefficients_from_nodes(values[:, : degree + 1])
         t = (2.0 * checks - (lo + hi)[:, None]) / (hi - lo)[:, None]
-        fitted = np.stack([np.polynomial.chebyshev.chebval(row_t, row_c) for row_t, row_c in zip(t, c)])
+        fitted = np.stack([np.polynomial.chebyshev.chebval(row_t, row_c) for row_t, row_c in zip(t, c, strict=True)])
         exact = values[:, degree + 1:]
         error = np.max(np.abs(fitted - exact) / np.abs(exact), axis=1)
         if not np.all(np.isfinite(error)):
             raise ValueError("fit_pieces: the function returned NaN or zero inside the interval")
         good = (error <= rtol) | (depth == max_depth and not strict)
-        done.extend(zip(lo[good], hi[good], c[good], error[good]))
+        done.extend(zip(lo[good], hi[good], c[good], error[good], strict=True))
         if good.all():
             done.sort(key=lambda piece: piece[0])
             edges = np.array([piece[0] for piece in done] + [done[-1][1]])

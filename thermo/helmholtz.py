@@ -44,7 +44,7 @@ class Scaled(NamedTuple):
     dt: np.ndarray  #: delta * tau * d2alpha/ddelta dtau
 
     def __add__(self, other: Scaled) -> Scaled:  # type: ignore[override]
-        return Scaled(*(x + y for x, y in zip(self, other)))
+        return Scaled(*(x + y for x, y in zip(self, other, strict=True)))
 
 
 class Derivatives(NamedTuple):
@@ -270,7 +270,7 @@ class NonAnalyticTerms:
         near = np.flatnonzero((exponent > self.NEGLIGIBLE_EXPONENT).any(axis=0))
         out = [np.zeros_like(delta) for _ in range(6 if tau_derivatives else 2)]
         if near.size:
-            for total, part in zip(out, self._terms(delta[near], tau[near], tau_derivatives)):
+            for total, part in zip(out, self._terms(delta[near], tau[near], tau_derivatives), strict=True):
                 total[near] = part
         return out
 
@@ -338,7 +338,7 @@ class ResidualHelmholtz:
         """(delta alphar_d, delta^2 alphar_dd) [-] at the tau of ``prepared``."""
         ad = np.zeros_like(delta)
         add = np.zeros_like(delta)
-        for family, p in zip(self.families, prepared):
+        for family, p in zip(self.families, prepared, strict=True):
             x, y = family.delta_part(delta, p)
             ad += x
             add += y
@@ -349,7 +349,7 @@ class ResidualHelmholtz:
         if prepared is None:
             prepared = self.prepare(tau)
         total = None
-        for family, p in zip(self.families, prepared):
+        for family, p in zip(self.families, prepared, strict=True):
             part = family.scaled(delta, p)
             total = part if total is None else total + part
         return total

@@ -103,7 +103,7 @@ def _ladder(eos, smallest, tol, max_iter):
         l, v, size = _newton(eos, eos.T_r / (Tc * (1.0 - theta)), mid + gap, mid - gap, tol, max_iter)
         if not (size[0] <= LADDER_RESOLUTION and l[0] > v[0]):
             break
-        for column, value in zip(ladder, (theta[0], 0.5 * (l[0] + v[0]), 0.5 * (l[0] - v[0]))):
+        for column, value in zip(ladder, (theta[0], 0.5 * (l[0] + v[0]), 0.5 * (l[0] - v[0])), strict=True):
             column.append(value)
     return ladder
 

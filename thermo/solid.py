@@ -268,7 +268,7 @@ class SolidCurve:
         of water (566, 16 and -653 Pa); the edge is the middle, each part clipped to its own end."""
         ranges = self._pressure_ranges
         edges = [ranges[0][0]]
-        for (_, high), (low, _) in zip(ranges, ranges[1:]):
+        for (_, high), (low, _) in zip(ranges, ranges[1:], strict=False):
             if abs(high - low) > PART_MISMATCH * high:
                 raise ValueError(f"{self.kind} parts do not meet: one ends at {high} Pa, the next starts at {low} Pa")
             edges.append(0.5 * (high + low))
@@ -312,7 +312,7 @@ class SolidCurve:
     def _inverses(self) -> list[ChebyshevPieces]:
         """T(x) of each part, x = p or ln p."""
         return [fit_inverse(part.pressure, part.T_min, part.T_max, low, high, logarithmic=self.logarithmic)
-                for part, (low, high) in zip(self.parts, self._pressure_ranges)]
+                for part, (low, high) in zip(self.parts, self._pressure_ranges, strict=True)]
 
     def _by_pressure(self, p, derivative: bool):
         fits = self._derivatives if derivative else self._inverses
