@@ -5,11 +5,8 @@ that fails is halved until the bad lines are isolated, so a clean file costs one
 garbled one only a few more, and every good row of a truncated or garbled file is read while
 each bad one is reported by its line number with a reason.
 
-CSV columns are found by name: time (`time`, `t`, `t_s`, `timestamp`, `datetime`, `date`,
-`elapsed`), pressure (`pressure...`, `p`, `pres`, `press`), temperature (`temperature...`,
-`temp`, `T`), with units from a bracketed suffix (`pressure [bar]`, `T (degC)`) or given as
-options. Time is seconds (or `[ms]`, `[min]`, `[h]`) or ISO 8601 (a time without a zone is
-taken as UTC). Results are SI: `t_s` [s from the first row], `t_wall` [s since the epoch, NaN
+CSV columns are found by name and unit (`tui.record.csv_header`). Time is seconds (or `[ms]`,
+`[min]`, `[h]`) or ISO 8601 (a time without a zone is taken as UTC). Results are SI: `t_s` [s from the first row], `t_wall` [s since the epoch, NaN
 when unknown], `pressure_Pa` (absolute), `temperature_K`.
 """
 
@@ -26,10 +23,10 @@ from pathlib import Path
 
 import numpy as np
 
-from thermo.units import STANDARD_ATMOSPHERE, UnitError
+from thermo.units import STANDARD_ATMOSPHERE
 from tui.acquire.sample import Quality
-from tui.acquire.units import pressure_map, temperature_map
 from tui.errors import UsageError
+from tui.record.csv_header import csv_layout
 from tui.record.recorder import COLUMNS, EVENT_PREFIX, FORMAT_LINE, META_PREFIX
 
 #: rows parsed per numpy call before bisection takes over
@@ -41,12 +38,6 @@ RUN_LOG_NUMBERS = (
 RUN_LOG_TEXTS = ("quality", "phase", "active_alarms", "reasons", "raw")
 DEFAULT_TEXTS = ("quality", "phase", "active_alarms")
 
-_TIME_NAMES = {"time", "t_s", "timestamp", "datetime", "date_time", "date", "elapsed", "seconds"}
-_PRESSURE_NAMES = {"p", "pres", "press", "pressure", "pressure_pa"}
-_TEMPERATURE_NAMES = {"temp", "temperature", "temperature_k"}
-_TIME_UNITS = {"s": 1.0, "sec": 1.0, "ms": 1e-3, "min": 60.0, "h": 3600.0}
-#: 'pressure [bar(g)]' -> name, unit; matches any text (a name without a closed bracket has no unit)
-_NAME_UNIT = re.compile(r"^\s*(?P<name>.*?)\s*(?:[\[(](?P<unit>.*)[\])])?\s*$", re.DOTALL)
 
 
 @dataclass
@@ -310,68 +301,24 @@ def _known_quality(values: np.ndarray, strings: np.ndarray, column: int, numbers
 
 
 def _read_csv(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
-    delimiter = options["delimiter"] or max((",", ";", "\t"), key=header.count)
-    names = next(csv.reader([header], delimiter=delimiter))
-    time_at, time_unit = _find(names, options["time_column"], _TIME_NAMES, "time", path)
-    p_at, p_unit = _find(names, options["pressure_column"], _PRESSURE_NAMES, "pressure", path)
-    T_at, T_unit = _find(names, options["temperature_column"], _TEMPERATURE_NAMES, "temperature", path)
-    p_unit = options["pressure_unit"] or p_unit or ("Pa" if names[p_at].strip().endswith("_Pa") else None)
-    T_unit = options["temperature_unit"] or T_unit or ("K" if names[T_at].strip().endswith("_K") else None)
-    for kind, unit, option in (("pressure", p_unit, "--pressure-unit"), ("temperature", T_unit, "--temperature-unit")):
-        if unit is None:
-            raise UsageError(f"{path}: the {kind} column has no unit: write it as '{kind} [unit]' or give {option}")
-    try:
-        p_map = pressure_map(p_unit, gauge=options["gauge"], atmosphere_Pa=options["atmosphere_Pa"])
-        T_map = temperature_map(T_unit)
-    except UnitError as exc:
-        raise UsageError(f"{path}: {exc}") from None
-    time_unit = options["time_unit"] or time_unit
-    first = _first_field(rows, time_at, delimiter)
+    layout = csv_layout(header, options, path)
+    first = _first_field(rows, layout.time_at, layout.delimiter)
     iso = first is not None and _looks_iso(first)
-    wanted = {"pressure": p_at, "temperature": T_at} | ({} if iso else {"time": time_at})
-    text_cols = {"time": time_at} if iso else {}
-    values, strings, good = _parse_rows(rows, numbers, names, wanted, text_cols, delimiter, bad)
-    p = values[:, 0] * p_map.scale + p_map.offset
-    T = values[:, 1] * T_map.scale + T_map.offset
+    wanted = {"pressure": layout.pressure_at, "temperature": layout.temperature_at} | ({} if iso else {"time": layout.time_at})
+    text_cols = {"time": layout.time_at} if iso else {}
+    values, strings, good = _parse_rows(rows, numbers, layout.names, wanted, text_cols, layout.delimiter, bad)
+    p = values[:, 0] * layout.pressure.scale + layout.pressure.offset
+    T = values[:, 1] * layout.temperature.scale + layout.temperature.offset
     if iso:
         t_wall, ok = _iso_seconds(strings[:, 0])
         for n in numbers[good][~ok]:
-            bad.append((int(n), f"time {names[time_at]!r} is not ISO 8601"))
+            bad.append((int(n), f"time {layout.names[layout.time_at]!r} is not ISO 8601"))
         t_wall, p, T = t_wall[ok], p[ok], T[ok]
         t_s = t_wall - t_wall[0] if len(t_wall) else t_wall
     else:
-        if time_unit is not None and time_unit not in _TIME_UNITS:
-            raise UsageError(f"{path}: unknown time unit {time_unit!r}; use s, ms, min or h")
-        t_s = values[:, 2] * _TIME_UNITS[time_unit or "s"]
+        t_s = values[:, 2] * layout.seconds_per_time_unit(path)
         t_wall = np.full(len(t_s), math.nan)
     return {"t_s": t_s, "t_wall": t_wall, "pressure_Pa": p, "temperature_K": T}
-
-
-def _find(names: list[str], given: str | None, known: set[str], what: str, path: Path) -> tuple[int, str | None]:
-    """Index and bracketed unit of the column called `given`, or of the first with a known name."""
-    for i, full in enumerate(names):
-        name, unit = _NAME_UNIT.match(full).group("name", "unit")
-        if given is not None and given.strip() in (full.strip(), name):
-            return i, unit
-        if given is None and _is_named(name, known, what):
-            return i, unit
-    if given is not None:
-        raise UsageError(f"{path}: no column named {given!r}; the header has {_header_text(names)}")
-    raise UsageError(f"{path}: no {what} column in the header ({_header_text(names)}); name it with --{what}-column")
-
-
-def _header_text(names: list[str], most: int = 120) -> str:
-    """The header's column names for a one-line message: printable, and cut short if long."""
-    text = ", ".join(names).encode("unicode_escape").decode("ascii")
-    return text if len(text) <= most else text[:most] + "..."
-
-
-def _is_named(name: str, known: set[str], what: str) -> bool:
-    """'t' is time and 'T' temperature; other names are matched without case."""
-    if name in ("t", "T"):
-        return (name == "t") == (what == "time")
-    low = name.lower()
-    return low in known or (what != "time" and low.startswith(what))
 
 
 def _first_field(rows: list[str], index: int, delimiter: str) -> str | None:
