@@ -81,10 +81,16 @@ class LeeKeslerSaturation:
         T = np.asarray(T, dtype=float)
         return np.where((T >= self.T_min) & (T <= self.T_max), values, np.nan)[()]
 
+    def _pressure(self, T):
+        """p_sat [Pa] of the correlation at T [K], wherever it can be evaluated."""
+        return self.eos.pc * np.exp(self._log_reduced(T))
+
     def pressure(self, T):
-        return self._inside(T, self.eos.pc * np.exp(self._log_reduced(T)))
+        """Vapor pressure p_sat [Pa] at T [K]."""
+        return self._inside(T, self._pressure(T))
 
     def dpdT(self, T):
+        """Slope dp_sat/dT [Pa/K] at T [K], the derivative of the correlation."""
         Tr = np.asarray(T, dtype=float) / self.eos.Tc
         f0 = 6.09648 / Tr**2 - 1.28862 / Tr + 6 * 0.169347 * Tr**5
         f1 = 15.6875 / Tr**2 - 13.4721 / Tr + 6 * 0.43577 * Tr**5
@@ -92,11 +98,10 @@ class LeeKeslerSaturation:
 
     @functools.cached_property
     def _inverse(self):
-        def pressure(T):
-            return self.eos.pc * np.exp(self._log_reduced(T))
-        return fit_inverse(pressure, self.T_min, self.T_max, self.p_min, self.p_max, logarithmic=True)
+        return fit_inverse(self._pressure, self.T_min, self.T_max, self.p_min, self.p_max, logarithmic=True)
 
     def temperature(self, p):
+        """Saturation temperature T_sat [K] at p [Pa] (Chebyshev inverse of the correlation)."""
         with np.errstate(divide="ignore", invalid="ignore"):
             return self._inverse(np.log(np.asarray(p, dtype=float)))
 

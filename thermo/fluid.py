@@ -31,6 +31,8 @@ PROPERTY_NAMES = ("density", "molar_volume", "Z", "alpha_p", "kappa_T", "cp", "c
 
 
 class Critical(NamedTuple):
+    """The critical point as the source of the fluid's equation of state states it."""
+
     T: float  #: critical temperature [K]
     p: float  #: critical pressure [Pa]
     rho: float  #: critical density [kg/m3]

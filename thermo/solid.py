@@ -365,9 +365,11 @@ class VerticalCurve(SolidCurve):
         return np.where((p >= self.p_min) & (p <= self.p_max), value, np.nan)[()]
 
     def temperature(self, p):
+        """T_t [K] for p_t <= p [Pa] <= p_top."""
         return self._on(p, self.triple[0])
 
     def dTdp(self, p):
+        """0 [K/Pa] on the line."""
         return self._on(p, 0.0)
 
 
@@ -467,10 +469,12 @@ class SolidCurves:
 
     @property
     def melting_published(self) -> bool:
+        """False where the melting curve is a documented fallback (answers are approximate)."""
         return self.melting.published
 
     @property
     def sublimation_published(self) -> bool:
+        """False where the sublimation curve is a documented fallback (answers are approximate)."""
         return self.sublimation.published
 
     @property
@@ -494,7 +498,12 @@ class SolidCurves:
         return out.reshape(p.shape)
 
     def solid_temperature(self, p) -> np.ndarray:
-        """Freezing temperature T_solid(p) [K]: melting curve for p >= p_t, sublimation below."""
+        """Freezing temperature T_solid(p) [K]: melting curve for p >= p_t, sublimation below.
+
+        >>> from thermo import fluid
+        >>> round(float(fluid("CO2").solid.solid_temperature(101325.0)), 2)  # Span & Wagner (1996): 194.686 K
+        194.69
+        """
         return self._split(p, "temperature")
 
     def solid_slope(self, p) -> np.ndarray:
