@@ -15,6 +15,7 @@ from tui.acquire.validate import Validator, ValidatorConfig
 from tui.errors import UsageError
 from tui.monitor.config import load_config
 from tui.monitor.pipeline import Monitor, Sink, run_live
+from tui.monitor.sinks import status_line
 
 FIXTURES = Path(__file__).parent.parent / "fixtures" / "monitor"
 
@@ -70,6 +71,8 @@ def test_a_stream_gone_quiet_becomes_failure_samples_and_a_sensor_alarm():
     assert [r.sample.quality for r in readings] == [Quality.FAILURE]
     assert "no sample for 2.5 s" in readings[0].sample.reasons[0]
     assert readings[0].phase == "unclassified"
+    # the technician's status line says why the reading is bad
+    assert "quality failure (no sample for 2.5 s" in status_line(readings[0], monitor.config)
     assert [e.condition for e in events if e.kind == "alarm"] == ["sensor-quality"]
     assert monitor.process([], now=4.0) == ([], [])  # one stand-in sample a second
     assert len(monitor.process([], now=4.6)[0]) == 1

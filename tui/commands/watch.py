@@ -203,8 +203,8 @@ def _headless(args, source, config, recorder, monitors, hook) -> int:
         for number, handler in previous.items():
             signal.signal(number, handler)
     active = monitor.active_alarms()
-    if active:
-        print(f"rigside watch: ended with alarms active: {', '.join(active)}", file=sys.stderr)
+    at_end = f"alarms active: {', '.join(active)}" if active else "no alarm active"
+    print(f"rigside watch: {why[0]}, {at_end}; run log {recorder.path}", file=sys.stderr)
     return EXIT_ALARM_ACTIVE if active else 0
 
 

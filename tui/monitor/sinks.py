@@ -187,7 +187,7 @@ def status_line(reading: Reading, config: MonitorConfig) -> str:
         f"crit {format_number(margins['critical_distance'], 3)}",
     ]
     if sample.quality.value != "ok":
-        parts.append(f"quality {sample.quality.value}")
+        parts.append(f"quality {sample.quality.value}" + (f" ({sample.reasons[0]})" if sample.reasons else ""))
     parts.append(f"ALARM {', '.join(reading.active_alarms)}" if reading.active_alarms else "no alarm")
     return "  ".join(parts)
 
