@@ -82,19 +82,21 @@ def test_the_margins_carry_their_limits_boundary_and_alarm_periods():
         run,
         UNITS,
         limits={"dT_saturation_K": [2.0, -2.0], "critical_distance": [0.05]},
-        alarms={"dT_saturation_K": {"saturation-temperature": [(30.0, 45.5), (60.0, 70.0)]}},
+        alarms={"dT_saturation_K": {"saturation-temperature": [(30.0, 45.5), (60.0, 70.0)], "two-phase": [(50.0, 55.0)]}},
     )
     panels = figure.axes
     assert [a.get_ylabel() for a in panels] == ["dT_saturation [K]", "dp_saturation [bar]", "critical_distance"]
     sat, dp, crit = (_lines(a) for a in panels)
-    np.testing.assert_allclose(sat["dT_saturation_K"].get_ydata(), run.margins["dT_saturation_K"])
-    np.testing.assert_allclose(dp["dp_saturation_Pa"].get_ydata(), run.margins["dp_saturation_Pa"] / 1e5)  # a difference: no offset
+    np.testing.assert_allclose(sat["dT_saturation"].get_ydata(), run.margins["dT_saturation_K"])
+    np.testing.assert_allclose(dp["dp_saturation"].get_ydata(), run.margins["dp_saturation_Pa"] / 1e5)  # a difference: no offset
     limit_lines = [line for line in panels[0].get_lines() if line.get_linestyle() == "--"]
     assert sorted(line.get_ydata()[0] for line in limit_lines) == [-2.0, 2.0]
     assert sat["limit 2, -2 K"] is limit_lines[0]
     assert crit["limit 0.05"].get_ydata()[0] == 0.05
     spans = [(patch.get_x(), patch.get_x() + patch.get_width()) for patch in panels[0].patches]
-    assert spans == [(30.0, 45.5), (60.0, 70.0)]
+    assert spans == [(30.0, 45.5), (60.0, 70.0), (50.0, 55.0)]
+    colours = [tuple(patch.get_facecolor()[:3]) for patch in panels[0].patches]
+    assert colours[0] == colours[1] != colours[2], "one colour per condition"
     assert "alarm: saturation-temperature" in [h.get_label() for h in panels[0].get_legend().legend_handles]
     assert len(panels[1].patches) == 0 and panels[-1].get_xlabel() == "time [s]"
 

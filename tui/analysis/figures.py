@@ -14,7 +14,7 @@ from pathlib import Path
 
 import numpy as np
 
-from tui.analysis.display import Units
+from tui.analysis.display import Units, margin_name
 from tui.analysis.run import AnalysedRun
 from tui.errors import RuntimeFailure
 from tui.monitor.model import MARGINS
@@ -24,6 +24,8 @@ from tui.screen.curves import fluid_curves
 MAX_POINTS = 4000
 #: figure formats written by `save`
 FORMATS = ("png", "svg")
+#: shading of alarm periods, one colour per condition (the same in every panel)
+ALARM_COLOURS = ("tab:red", "tab:orange", "tab:purple", "tab:brown", "tab:pink")
 
 #: margin -> axis title
 MARGIN_TITLES = {
@@ -122,12 +124,14 @@ def margins_figure(
     """
     Figure = matplotlib_figure_class()
     shown_margins = [name for name in MARGINS if name in run.margins]
+    conditions = sorted({condition for periods in (alarms or {}).values() for condition in periods})
+    colours = {c: ALARM_COLOURS[i % len(ALARM_COLOURS)] for i, c in enumerate(conditions)}
     figure = Figure(figsize=(8.0, 2.0 + 1.8 * len(shown_margins)), layout="constrained")
     panels = figure.subplots(len(shown_margins), 1, sharex=True, squeeze=False)[:, 0]
     for axes, name in zip(panels, shown_margins):
         scale, unit = units.margin(name)
         shown = thin([run.margins[name]])
-        axes.plot(run.t_s[shown], scale(run.margins[name][shown]), linewidth=1.0, label=name)
+        axes.plot(run.t_s[shown], scale(run.margins[name][shown]), linewidth=1.0, label=margin_name(name))
         axes.axhline(0.0, linewidth=0.8, color="black", label="boundary")
         drawn = [float(scale(limit)) for limit in (limits or {}).get(name, ())]
         for i, limit in enumerate(drawn):
@@ -135,10 +139,10 @@ def margins_figure(
             axes.axhline(limit, linestyle="--", linewidth=0.9, color="0.35", label=label)
         for condition, periods in (alarms or {}).get(name, {}).items():
             for i, (start, end) in enumerate(periods):
-                axes.axvspan(start, end, alpha=0.25, color="tab:red", label=f"alarm: {condition}" if i == 0 else None)
+                axes.axvspan(start, end, alpha=0.25, color=colours[condition], label=f"alarm: {condition}" if i == 0 else None)
         axes.set_title(MARGIN_TITLES[name], fontsize="medium", loc="left")
         axes.set_ylabel(units.margin_label(name))
-        axes.legend(loc="upper right", fontsize="x-small")
+        axes.legend(loc="best", fontsize="x-small")
     panels[-1].set_xlabel("time [s]")
     figure.suptitle(f"{Path(run.source).name}: margins over time")
     return figure
