@@ -204,7 +204,9 @@ def test_jsonl_is_strict_json_and_tells_unknown_from_not_closing(tmp_path):
     objects = [strict_json(line) for line in done.stdout.splitlines()]
     samples = [o for o in objects if o["type"] == "sample"]
     assert len(samples) == 400 and all(o["t_wall"] is None for o in samples)
-    assert all(o["t_wall"] is None for o in objects if o["type"] == "source")
+    reports = [o for o in objects if o["type"] == "source"]
+    assert all(o["t_wall"] is None for o in reports)
+    assert reports[-1]["state"] == "ended" and reports[-1]["t_s"] == samples[-1]["t_s"]  # on the samples' clock
     for sample in samples:
         for margin, seconds in sample["time_to_boundary_s"].items():
             closing = sample["closing"][margin]

@@ -110,8 +110,12 @@ def event_json(event: Event) -> dict:
     return plain({"type": "event", **event.to_json()})
 
 
-def status_json(report: SourceStatus) -> dict:
-    return plain({"type": "source", "t_wall": report.t_wall, "state": report.state, "message": report.message})
+def status_json(report: SourceStatus, t0: float | None) -> dict:
+    """A source report; `t_s` on the run's clock once the first sample has set it (`t0`, the
+    samples' clock at t_s = 0), null before."""
+    t_s = None if t0 is None else report.t_monotonic - t0
+    return plain({"type": "source", "t_s": t_s, "t_wall": report.t_wall, "state": report.state,
+                  "message": report.message})
 
 
 class JsonLinesSink(Sink):
@@ -119,8 +123,11 @@ class JsonLinesSink(Sink):
 
     def __init__(self, stream: TextIO):
         self._stream = stream
+        self._t0: float | None = None
 
     def write(self, readings, events) -> None:
+        if readings and self._t0 is None:
+            self._t0 = readings[0].sample.t_monotonic - readings[0].t_s
         lines = [dumps(reading_json(item) if isinstance(item, Reading) else event_json(item))
                  for item in in_time_order(readings, events)]
         if lines:
@@ -128,7 +135,7 @@ class JsonLinesSink(Sink):
             self._stream.flush()
 
     def status(self, report) -> None:
-        self._stream.write(dumps(status_json(report)) + "\n")
+        self._stream.write(dumps(status_json(report, self._t0)) + "\n")
         self._stream.flush()
 
 
