@@ -84,6 +84,7 @@ def test_loop_url_with_units_from_options_and_garbage_counted():
     assert first.pressure_Pa == pytest.approx(1.5 * BAR) and second.temperature_K == pytest.approx(294.15)
     assert bad.quality is Quality.FAILURE and bad.reasons[0].startswith("malformed:")
     assert source.counters.malformed == 1 and source.counters.lines == 3
+    assert source.description == "serial loop://, profile generic", "no baud rate for a link that has none"
 
 
 def test_bad_ports_are_one_line_usage_errors():

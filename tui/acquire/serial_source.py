@@ -47,9 +47,12 @@ class SerialSource(Source):
         self.poll = profile.poll
         self.counters = Counters()
         s = self.settings
-        framing = f"{s['baudrate']} {s['bytesize']}{s['parity']}{s['stopbits']:g}"
+        # a raw TCP socket or loop:// has no line settings: naming them would mislead
+        framing = f" {s['baudrate']} {s['bytesize']}{s['parity']}{s['stopbits']:g}"
+        if url.startswith(("socket://", "loop://")):
+            framing = ""
         asked = f", polled every {self.poll.interval_s:g} s" if self.poll else ""
-        self.description = f"serial {url} {framing}, profile {profile.name}{asked}"
+        self.description = f"serial {url}{framing}, profile {profile.name}{asked}"
         self._timeout = min(WAKE_S, self.poll.reply_timeout_s / 2) if self.poll else WAKE_S
         self._next_poll = 0.0
         self._asked_at: float | None = None
