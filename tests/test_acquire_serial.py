@@ -1,6 +1,7 @@
 """Serial sources over real transports: a pty pair, loop://, TCP on 127.0.0.1; unplug and come back."""
 
 import os
+import socket
 import threading
 import time
 import tty
@@ -94,6 +95,11 @@ def test_bad_ports_are_one_line_usage_errors():
         open_source("bogus://x")
     with pytest.raises(UsageError, match="no source given"):
         open_source("")
+    with socket.create_server(("127.0.0.1", 0)) as closed:
+        port = closed.getsockname()[1]
+    with pytest.raises(UsageError) as refused:
+        open_source(f"socket://127.0.0.1:{port}")
+    assert str(refused.value).count(f"127.0.0.1:{port}") == 1, "the URL is named once"
     with pytest.raises(UsageError, match="play a scenario with virtual:fixtures/scenarios/nitrogen-transfer.toml"):
         open_source("fixtures/scenarios/nitrogen-transfer.toml")
 

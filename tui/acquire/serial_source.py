@@ -59,7 +59,11 @@ class SerialSource(Source):
         try:
             self.port = self._open()
         except (serial.SerialException, OSError, ValueError) as exc:
-            raise UsageError(f"cannot open {url}: {one_line(exc)}") from None
+            raise UsageError(f"cannot open {url}: {self._reason(exc)}") from None
+
+    def _reason(self, exc: BaseException) -> str:
+        """pyserial's message without its 'could not open port URL: ' (the caller names the URL)."""
+        return one_line(exc).split(f"{self.url}: ", 1)[-1]
 
     def _open(self) -> serial.SerialBase:
         return serial.serial_for_url(self.url, timeout=self._timeout, write_timeout=1.0, **self.settings)
@@ -74,7 +78,7 @@ class SerialSource(Source):
                 try:
                     self.port = self._open()
                 except (serial.SerialException, OSError, ValueError) as exc:
-                    yield [status("reconnecting", f"{self.url}: {one_line(exc)}")]
+                    yield [status("reconnecting", f"{self.url}: {self._reason(exc)}")]
                     continue
                 self.counters.reconnects += 1
                 backoff.reset()
@@ -84,7 +88,7 @@ class SerialSource(Source):
                 batch = self._read_batch()
             except (serial.SerialException, OSError) as exc:
                 self._drop_port()
-                yield [status("disconnected", f"{self.url}: {one_line(exc)}")]
+                yield [status("disconnected", f"{self.url}: {self._reason(exc)}")]
                 continue
             if batch:
                 yield batch
