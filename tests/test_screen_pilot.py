@@ -148,6 +148,52 @@ async def test_help_lists_the_keys_and_the_safety_line():
         assert not isinstance(app.screen, HelpScreen)
 
 
+async def test_replay_keys_show_their_effect_while_paused():
+    from tui.acquire import SourceOptions, open_source
+    from tui.monitor.config import load_config
+    from tui.monitor.pipeline import Monitor
+    from tui.screen.app import make_app
+    from tui.screen.session import Session
+    from tui.screen.widgets.status_line import StatusLine
+
+    source = open_source("virtual:view-cell", SourceOptions(speed=10.0))
+    app = make_app(Session(source, load_config(fluid="CO2"), make_monitor=Monitor))
+
+    async def shows(words):
+        for _ in range(40):
+            if words in app.screen.query_one(StatusLine).text:
+                return True
+            await pilot.pause(0.05)
+        return False
+
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(pilot, 20)
+        await pilot.press("space")
+        assert await shows("paused")
+        await pilot.pause(0.3)
+        paused_at = source.position
+        await pilot.press("right")
+        assert await shows(f"{int(paused_at + 10) // 60}:{(paused_at + 10) % 60:04.1f}/")
+        samples = app.latest_view.samples
+        await pilot.press("full_stop")
+        for _ in range(40):
+            if app.latest_view.samples == samples + 1:
+                break
+            await pilot.pause(0.05)
+        assert app.latest_view.samples == samples + 1
+    app.session.close(1.0)
+
+
+async def test_help_keeps_the_safety_line_in_view_on_a_small_terminal():
+    app = memory_app(steady(*subcooled_state(5.0), 2))
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.press("question_mark")
+        await pilot.pause(0.1)
+        safety, keys = app.screen.query_one(".safety"), app.screen.query_one("#help-keys")
+        assert safety.region.bottom <= 24 and keys.region.bottom <= safety.region.y
+        assert keys.max_scroll_y > 0  # the rest of the keys scroll into view
+
+
 async def test_note_goes_into_the_run_log_and_quitting_asks_first(tmp_path):
     from tui.record import RunRecorder
 

@@ -211,6 +211,20 @@ class Session:
         return {key: float(values[key]) for key in SHOWN_PROPERTIES}
 
     # ------------------------------------------------------------ operator commands (screen thread)
+    def refresh_replay(self) -> None:
+        """While a replay is paused no batch brings its position: publish it when a step or a
+        seek has moved it, so the keys show their effect."""
+        if self.replay is None:
+            return
+        position = self.replay.position
+        if not position.paused:
+            return
+        with self._lock:
+            if position == self.feed.view.replay:
+                return
+            view = self.feed.update(replay=position)
+        self._publish(view)
+
     def acknowledge(self, condition: str) -> None:
         """The ack events reach the run log and the screen with the monitor's next batch."""
         self.monitor.acknowledge(condition)

@@ -41,6 +41,7 @@ class HelpScreen(ModalScreen[None]):
     """Opened with ? or F1; any of escape, ? or q closes it."""
 
     BINDINGS = [Binding("escape,question_mark,q,f1", "dismiss", "close")]
+    VERTICAL_BREAKPOINTS = [(0, "-short"), (36, "-tall")]
 
     def __init__(self, bindings: list[Binding]) -> None:
         super().__init__()

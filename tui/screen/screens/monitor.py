@@ -53,7 +53,7 @@ class MonitorScreen(Screen):
         Binding("down,j", "select(1)", "next alarm", show=False, tooltip="select the alarm below"),
         Binding("m", "app.note", "note", tooltip="mark this moment and type a note for the run log"),
         Binding("d", "toggle_view", "p–T/p–v", tooltip="diagram: pressure–temperature or pressure–volume"),
-        Binding("z", "toggle_zoom", "zoom", tooltip="diagram: zoom between the whole range and near the live state"),
+        Binding("z", "toggle_zoom", "zoom", tooltip="zoom: whole range or near the live state"),
         Binding("u", "app.next_pressure_unit", "p unit", tooltip="next pressure unit (absolute and gauge)"),
         Binding("t", "app.next_temperature_unit", "T unit", tooltip="next temperature unit"),
         Binding("f", "app.pick_fluid", "fluid", tooltip="choose the fluid in the rig"),
@@ -114,6 +114,7 @@ class MonitorScreen(Screen):
         events, status) follow every new view; numbers and the diagram change NUMBERS_HZ times
         a second, and at once when the units or the fluid change."""
         app = self.app
+        app.session.refresh_replay()
         view: LiveView = app.latest_view
         self.refreshes += 1
         if id(view) != self._words_drawn:
