@@ -57,6 +57,7 @@ class Classification:
     approximate: np.ndarray  #: answer rests on a fallback curve or an approximate fluid (bool)
     melting_published: bool  #: False: the melting curve is a documented fallback
     sublimation_published: bool  #: False: the sublimation curve is a documented fallback
+    code: np.ndarray  #: the phases as indices into LABELS (uint8), for callers that compare many of them
 
 
 def classify(fluid, T, p, u_T=0.0, u_p=0.0, *, k: float = K_COVERAGE) -> Classification:
@@ -88,7 +89,7 @@ def classify(fluid, T, p, u_T=0.0, u_p=0.0, *, k: float = K_COVERAGE) -> Classif
         return values[()] if values.ndim == 0 else values
 
     return Classification(shaped(_LABEL_ARRAY[code]), *(shaped(m) for m in margins), *(shaped(f) for f in flags),
-                          fluid.solid.melting_published, fluid.solid.sublimation_published)
+                          fluid.solid.melting_published, fluid.solid.sublimation_published, shaped(code))
 
 
 def _classify_block(fluid, T, p, u_T, u_p, k):

@@ -51,9 +51,8 @@ def run_batch(t_s, pressure_Pa, temperature_K, quality, config: MonitorConfig, *
     pressure, temperature = (np.asarray(a, dtype=float).reshape(n) for a in (pressure_Pa, temperature_K))
     codes = quality_codes(quality, n)
     t_wall = np.full(n, np.nan) if t_wall is None else np.asarray(t_wall, dtype=float).reshape(n)
-    valid, labels, margins = Classifier(config)(pressure, temperature, codes)
     engine = Engine(config)
-    phase = engine.phases.encode(labels)
+    valid, phase, margins = Classifier(config, engine.phases)(pressure, temperature, codes)
     rates, to_boundary = np.empty_like(margins), np.empty_like(margins)
     active = np.empty((len(engine.names), n), dtype=bool)
     events: list[Event] = []
@@ -65,7 +64,7 @@ def run_batch(t_s, pressure_Pa, temperature_K, quality, config: MonitorConfig, *
         rates[:, s], to_boundary[:, s], active[:, s] = step.rates, step.time_to_boundary, step.active
         events += step.events
     return BatchResult(
-        phase=labels,
+        phase=engine.phases.decode(phase),
         margins=dict(zip(MARGINS, margins)),
         rates=dict(zip(MARGINS, rates)),
         time_to_boundary=dict(zip(MARGINS, to_boundary)),

@@ -7,6 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from thermo.classify import LABELS as THERMO_LABELS
 from tui.acquire.sample import QUALITY_SEVERITY, Quality
 from tui.monitor.model import UNCLASSIFIED
 
@@ -32,6 +33,8 @@ class PhaseCodes:
     def __init__(self) -> None:
         self.labels: list[str] = list(self.KNOWN)
         self._code = {label: code for code, label in enumerate(self.labels)}
+        self._of_thermo = np.array([self.code(label) for label in THERMO_LABELS], dtype=np.int16)
+        self.unclassified = self._code[UNCLASSIFIED]
 
     def code(self, label: str) -> int:
         if label not in self._code:
@@ -41,15 +44,13 @@ class PhaseCodes:
             self.labels.append(label)
         return self._code[label]
 
-    def encode(self, labels: np.ndarray) -> np.ndarray:
-        """Array of labels -> int16 codes (one comparison pass per known label)."""
-        labels = np.asarray(labels)
-        codes = np.full(labels.shape, -1, dtype=np.int16)
-        for code, label in enumerate(self.labels):
-            codes[labels == label] = code
-        for label in np.unique(labels[codes < 0]):
-            codes[labels == label] = self.code(str(label))
-        return codes
+    def of_thermo(self, codes: np.ndarray) -> np.ndarray:
+        """thermo's phase codes (``Classification.code``) -> int16 codes, one table lookup."""
+        return self._of_thermo.take(codes)
+
+    def decode(self, codes: np.ndarray) -> np.ndarray:
+        """int16 codes -> array of labels."""
+        return np.array(self.labels).take(codes)
 
 
 @dataclass(frozen=True, slots=True)

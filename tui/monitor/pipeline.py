@@ -35,8 +35,8 @@ class Monitor:
 
     def __init__(self, config: MonitorConfig, *, validator: Validator | None = None):
         self.config = config
-        self._classifier = Classifier(config)
         self._engine = Engine(config)
+        self._classifier = Classifier(config, self._engine.phases)
         self._validator = validator
         self._lock = threading.RLock()
         self._pending: list[Event] = []
@@ -86,19 +86,19 @@ class Monitor:
         temperature = np.fromiter((s.temperature_K for s in samples), float, n)
         quality = np.fromiter((QUALITY_CODE[s.quality] for s in samples), np.int8, n)
         reasons, raw = tuple(s.reasons for s in samples), tuple(s.raw for s in samples)
-        valid, labels, margins = self._classifier(pressure, temperature, quality)
-        phase = self._engine.phases.encode(labels)
+        valid, phase, margins = self._classifier(pressure, temperature, quality)
         step = self._engine.step(t_s, t_wall, pressure, temperature, quality, valid, phase, margins, reasons, raw)
-        return self._readings(samples, t_s, labels, margins, step), step.events
+        return self._readings(samples, t_s, phase, margins, step), step.events
 
-    def _readings(self, samples, t_s, labels, margins, step) -> list[Reading]:
+    def _readings(self, samples, t_s, phase, margins, step) -> list[Reading]:
+        labels = self._engine.phases.labels
         weights = 1 << np.arange(step.active.shape[0], dtype=np.int64)
         masks = (weights @ step.active.astype(np.int64)).tolist() if step.active.size else [0] * len(samples)
         return [
-            Reading(sample, phase, dict(zip(MARGINS, m)), dict(zip(MARGINS, r)), dict(zip(MARGINS, b)),
+            Reading(sample, labels[code], dict(zip(MARGINS, m)), dict(zip(MARGINS, r)), dict(zip(MARGINS, b)),
                     self._names(mask), t)
-            for sample, phase, m, r, b, mask, t in zip(
-                samples, labels.tolist(), margins.T.tolist(), step.rates.T.tolist(),
+            for sample, code, m, r, b, mask, t in zip(
+                samples, phase.tolist(), margins.T.tolist(), step.rates.T.tolist(),
                 step.time_to_boundary.T.tolist(), masks, t_s.tolist(),
             )
         ]
