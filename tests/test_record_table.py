@@ -74,6 +74,16 @@ def test_garbage_rows_and_a_truncated_last_line_are_reported_by_number(tmp_path)
     assert table["t_s"].tolist() == [float(i) for i in good]
 
 
+def test_two_lines_run_together_are_a_bad_line_not_a_glued_value(tmp_path):
+    """A lost line end glues '20' and '2' into 202 degC: a row with more fields than the header is refused,
+    a trailing empty field is not."""
+    path = write(tmp_path, "t_s;pressure [bar];temperature [degC];note\n0;50;20;\n1;50;202;51;20\n3;50;20;;\n4;51;20;ok\n")
+    table = read_table(path)
+    assert table.bad_lines == [(3, "5 fields where the header has 4 (two lines run together?)")]
+    assert table["t_s"].tolist() == [0.0, 3.0, 4.0]
+    assert table["temperature_K"] == pytest.approx([293.15] * 3)
+
+
 def test_blank_lines_and_comments_are_skipped(tmp_path):
     table = read_table(write(tmp_path, "# made by hand\n\ntime,p [bar],T [K]\n0,1,300\n\n# pause\n1,1,300\n   \n"))
     assert len(table) == 2 and not table.bad_lines

@@ -19,6 +19,7 @@ import re
 import warnings
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from itertools import repeat
 from pathlib import Path
 
 import numpy as np
@@ -26,7 +27,7 @@ import numpy as np
 from thermo.units import STANDARD_ATMOSPHERE
 from tui.acquire.sample import Quality
 from tui.errors import UsageError
-from tui.record.csv_header import csv_layout
+from tui.record.csv_header import CsvLayout, csv_layout
 from tui.record.recorder import COLUMNS, EVENT_PREFIX, FORMAT_LINE, META_PREFIX
 
 #: rows parsed per numpy call before bisection takes over
@@ -302,6 +303,7 @@ def _known_quality(values: np.ndarray, strings: np.ndarray, column: int, numbers
 
 def _read_csv(header: str, rows: list[str], numbers: np.ndarray, bad: list, options: dict, path: Path) -> dict:
     layout = csv_layout(header, options, path)
+    rows, numbers = _drop_overfull(rows, numbers, layout, bad)
     first = _first_field(rows, layout.time_at, layout.delimiter)
     iso = first is not None and _looks_iso(first)
     wanted = {"pressure": layout.pressure_at, "temperature": layout.temperature_at} | ({} if iso else {"time": layout.time_at})
@@ -319,6 +321,24 @@ def _read_csv(header: str, rows: list[str], numbers: np.ndarray, bad: list, opti
         t_s = values[:, 2] * layout.seconds_per_time_unit(path)
         t_wall = np.full(len(t_s), math.nan)
     return {"t_s": t_s, "t_wall": t_wall, "pressure_Pa": p, "temperature_K": T}
+
+
+def _drop_overfull(rows: list[str], numbers: np.ndarray, layout: CsvLayout, bad: list) -> tuple[list[str], np.ndarray]:
+    """Leave out, and report, rows with more fields than the header: two lines run together by a
+    lost line end would otherwise give a value glued from both ('20' and '2,51' -> 202)."""
+    width = len(layout.names)
+    delimiters = np.fromiter(map(str.count, rows, repeat(layout.delimiter)), dtype=np.int64, count=len(rows))
+    overfull = []
+    for i in np.flatnonzero(delimiters >= width).tolist():  # only rows with a delimiter too many
+        fields = next(csv.reader([rows[i]], delimiter=layout.delimiter), [])
+        if any(cell.strip() for cell in fields[width:]):  # a trailing empty field is no harm
+            overfull.append(i)
+            bad.append((int(numbers[i]), f"{len(fields)} fields where the header has {width} (two lines run together?)"))
+    if not overfull:
+        return rows, numbers
+    keep = np.ones(len(rows), dtype=bool)
+    keep[overfull] = False
+    return _pick(rows, np.flatnonzero(keep)), numbers[keep]
 
 
 def _first_field(rows: list[str], index: int, delimiter: str) -> str | None:
