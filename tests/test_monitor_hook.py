@@ -27,7 +27,7 @@ def test_each_alarm_system_event_runs_the_program_once_with_the_event_in_its_env
     message = "gauge said 'p=\x00; rm -rf ~' $(reboot)"
     events = [
         Event(12.5, 1.8e9, "alarm", "two-phase", "medium", float("nan"), float("nan"), message),
-        Event(13.0, 1.8e9, "phase-change", "phase", message="phase liquid -> liquid+vapor"),  # not an alarm event
+        Event(13.0, 1.8e9, "phase-change", "phase", message="liquid -> liquid+vapor"),  # not an alarm event
         Event(20.0, 1.8e9, "clear", "saturation-temperature", "high", 2.31, 2.0, "back to normal"),
     ]
     assert run_hook([sys.executable, "-c", DUMP, str(out)], events) == []

@@ -64,7 +64,7 @@ def test_water_heated_at_constant_pressure_alarms_when_its_subcooling_falls_belo
     warning = alarm_times(events, "saturation-temperature-trend")
     assert warning and warning[0] < expected  # the trend warns before the limit
     changes = [e.message for e in events if e.kind == "phase-change"]
-    assert changes == ["phase liquid", "phase liquid -> liquid+vapor", "phase liquid+vapor -> vapor"]
+    assert changes == ["now liquid", "liquid -> liquid+vapor", "liquid+vapor -> vapor"]
 
 
 def test_liquid_co2_chilled_towards_its_melting_curve_warns_of_solid_formation():
@@ -92,4 +92,4 @@ def test_co2_vapor_cooled_at_one_bar_warns_before_dry_ice_forms():
     expected = expected_alarm_time(t, T - fluid.sublimation_temperature(p) <= settings.limit, settings.on_delay_s)
     assert alarm_times(events, "solid-approach") == [pytest.approx(expected, abs=1e-6)]
     assert alarm_times(events, "solid-approach-trend")[0] < expected
-    assert [e.message for e in events if e.kind == "phase-change"][-1] == "phase vapor -> solid+vapor"
+    assert [e.message for e in events if e.kind == "phase-change"][-1] == "vapor -> solid+vapor"

@@ -162,7 +162,7 @@ class Engine:
 
     def _phase_event(self, frame: Frame, column: int, before: int, after: int) -> Event:
         new = self.phases.labels[after]
-        message = f"phase {self.phases.labels[before]} -> {new}" if before >= 0 else f"phase {new}"
+        message = f"{self.phases.labels[before]} -> {new}" if before >= 0 else f"now {new}"
         return Event(float(frame.t_s[column]), float(frame.t_wall[column]), "phase-change", "phase", message=message)
 
     # -- operator actions (between chunks) ------------------------------------------------
