@@ -33,3 +33,10 @@ def test_least_important_parts_go_first():
 def test_the_source_is_cut_short_before_it_goes():
     text = status_content(VIEW, 160).plain
     assert VIEW.source not in text and "replay fixtures/" in text and text.endswith("…")
+
+
+def test_a_replay_that_has_ended_says_so():
+    from dataclasses import replace
+
+    ended = replace(VIEW, source_state="ended")
+    assert "ended ■" in status_content(ended, 160).plain and "playing" not in status_content(ended, 160).plain

@@ -43,7 +43,7 @@ def status_parts(view: LiveView) -> list[Part]:
         parts.append(Part("NOT RECORDING", "bold"))
     if view.replay is not None:
         replay = view.replay
-        state = "paused ⏸" if replay.paused else "playing ▶"
+        state = "ended ■" if view.source_state == "ended" else "paused ⏸" if replay.paused else "playing ▶"
         parts.append(Part(f"{clock(replay.position_s)}/{clock(replay.duration_s)} ×{replay.speed:g} {state}"))
     parts.append(Part(view.source, "dim", rank=3))
     return parts
