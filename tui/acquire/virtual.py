@@ -24,6 +24,9 @@ from tui.acquire.voice import Voice
 
 #: samples per batch when playing as fast as possible
 BATCH = 1024
+#: at high rates, wake for a group of samples at least this long [s], not for every sample:
+#: rendering one sample's frame costs more than the sample (the monitor polls every 50 ms anyway)
+MIN_GROUP_S = 0.02
 
 
 class VirtualGauge(Playback, Source):
@@ -50,6 +53,7 @@ class VirtualGauge(Playback, Source):
 
     def batches(self, stop: threading.Event) -> Iterator[list[Item]]:
         rate, total = self.scenario.rate_hz, self.scenario.samples
+        group = max(1, int(rate * MIN_GROUP_S))
         k = 0
         yield [self._status("connected", self.description)]
         while not stop.is_set():
@@ -59,7 +63,8 @@ class VirtualGauge(Playback, Source):
             if k >= total and not self.scenario.loop:
                 yield [self._status("ended", f"end of scenario {self.scenario.name}")]
                 return
-            if not self.pacer.wait_until(k / rate, stop):
+            last = k + group - 1 if self.scenario.loop else min(k + group, total) - 1
+            if not self.pacer.wait_until(last / rate, stop):
                 if self.pacer.paused:
                     yield [self._status("paused", f"paused at {self.position:.1f} s")]
                 continue
