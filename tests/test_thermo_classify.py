@@ -105,7 +105,7 @@ def test_scalars_give_values_that_behave_like_floats_and_strings():
     assert isinstance(c.dT_solid + 1.0, float)
 
 
-# ------------------------------------------------------------ a naive transcription of DESIGN.md section 3
+# ------------------------------------------------------------ a naive re-implementation of DESIGN.md section 3
 def naive_label(f, T, p, u_T, u_p, k=2.0):
     """One state at a time, the rules as written, scalar calls to the curves."""
     Tc, pc = f.critical.T, f.critical.p
@@ -147,7 +147,7 @@ def naive_label(f, T, p, u_T, u_p, k=2.0):
 
 @pytest.mark.parametrize("key", SOME_FLUIDS)
 @pytest.mark.parametrize(("u_T", "u_p"), [(0.0, 0.0), (0.2, 0.0), (0.0, 2e4), (0.5, 5e4)])
-def test_vectorized_labels_match_the_naive_transcription(key, u_T, u_p):
+def test_vectorized_labels_match_the_naive_reimplementation(key, u_T, u_p):
     f = fluid(key)
     rng = np.random.default_rng(7)
     T = rng.uniform(0.6 * f.triple.T, 1.3 * f.critical.T, 400)

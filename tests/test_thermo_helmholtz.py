@@ -1,4 +1,4 @@
-"""Helmholtz-energy term evaluators: naive transcriptions, finite differences, published and
+"""Helmholtz-energy term evaluators: naive re-implementations, finite differences, published and
 reference-library values."""
 
 from __future__ import annotations
@@ -19,7 +19,7 @@ DELTA = RNG.uniform(0.05, 3.0, 12)
 TAU = RNG.uniform(0.4, 2.5, 12)
 
 
-# ------------------------------------------------ naive transcriptions of the published forms
+# ------------------------------------------------ naive re-implementations of the published forms
 def naive_power(b, delta, tau):
     """Span (2000): n delta^d tau^t exp(-delta^l)."""
     total = 0.0
@@ -100,7 +100,7 @@ def test_every_family_is_used_by_some_fluid(kind):
 
 
 @pytest.mark.parametrize("key, index", [p for kind in RESIDUAL_FAMILIES for p in blocks_of(kind)])
-def test_vectorized_family_matches_naive_transcription(key, index):
+def test_vectorized_family_matches_naive_reimplementation(key, index):
     block = load_data(key)["eos"]["residual"][index]
     naive = NAIVE[block["type"]]
     fast = ResidualHelmholtz([block]).derivatives(DELTA, TAU)
@@ -112,7 +112,7 @@ def test_vectorized_family_matches_naive_transcription(key, index):
 
 
 @pytest.mark.parametrize("key", fluids())
-def test_ideal_part_matches_naive_transcription(key):
+def test_ideal_part_matches_naive_reimplementation(key):
     blocks = load_data(key)["eos"]["ideal"]
     a, at, att = IdealHelmholtz(blocks).scaled(DELTA, TAU)
     for i, (d, t) in enumerate(zip(DELTA[:4], TAU[:4])):
