@@ -101,9 +101,14 @@ class RigsideApp(App):
 
         def typed(text: str | None) -> None:
             if text is not None:
-                self.session.note(text, moment)
+                self.save_note(text, moment)
 
         self.push_screen(NoteScreen(moment[1]), typed)
+
+    @work(thread=True, group="notes")
+    def save_note(self, text: str, moment: tuple[float, float]) -> None:
+        """Into the run log off the screen's thread: the recorder may be in the middle of an fsync."""
+        self.session.note(text, moment)
 
     def action_next_pressure_unit(self) -> None:
         self.pressure_unit = _next_unit(PRESSURE_CYCLE, self.pressure_unit, self.pressure_unit.atmosphere)
