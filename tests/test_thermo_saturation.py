@@ -81,6 +81,24 @@ def test_chebyshev_edges_nan_and_shapes():
     assert pieces(np.empty((0, 4))).shape == (0, 4)
 
 
+@pytest.mark.parametrize("key", ["CO2", "H2O"])
+def test_a_few_points_give_the_same_bits_as_an_array(key):
+    """A live chunk of a sample or two is summed in Python floats: the same values to the bit as
+    the array path, so a live run and its batch replay classify alike."""
+    curve = fluid(key).saturation
+    rng = np.random.default_rng(3)
+    T = np.concatenate([rng.uniform(curve.T_min - 5.0, curve.T_max + 5.0, 4000),
+                        [curve.T_min, curve.T_max, np.nan, np.inf, -np.inf]])
+    pieces = (curve._pressure, curve._slope, curve._liquid)
+    for series in pieces:
+        together = series(T)
+        one_by_one = np.array([series(np.array([value]))[0] for value in T])
+        two_by_two = np.concatenate([series(pair) for pair in T[:4000].reshape(-1, 2)])
+        assert np.array_equal(together, one_by_one, equal_nan=True)
+        assert np.array_equal(together[:4000], two_by_two, equal_nan=True)
+        assert np.isnan(one_by_one[-3:]).all()
+
+
 def test_fit_pieces_refuses_what_it_cannot_fit_and_pieces_check_their_edges():
     with pytest.raises(ValueError, match="not met"):
         fit_pieces(np.sqrt, 0.0, 1.0, degree=6, rtol=1e-12, max_depth=4)

@@ -20,6 +20,7 @@ are dyadic), so a lookup table indexed by the grid cell gives the piece. A binar
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
@@ -27,8 +28,22 @@ import numpy as np
 
 #: points evaluated per chunk: keeps the temporaries of the Clenshaw sum in the CPU cache
 CHUNK = 16384
+#: up to this many points are evaluated one by one in Python floats (cheaper than numpy's calls)
+FEW = 4
 #: largest lookup table (grid cells of the finest piece) accepted
 MAX_CELLS = 1 << 16
+
+
+def _clenshaw(c, t):
+    """sum_k c[k] T_k(t) by Clenshaw's recurrence; t and the c[k] are floats or arrays alike
+    (Clenshaw, C. W. A note on the summation of Chebyshev series. Math. Comp. 9 (1955) 118-120)."""
+    if len(c) == 1:
+        return c[0] + 0.0 * t
+    two_t = t + t
+    b1, b2 = c[-1], 0.0
+    for k in range(len(c) - 2, 0, -1):
+        b1, b2 = c[k] + two_t * b1 - b2, b1
+    return c[0] + t * b1 - b2
 
 
 def chebyshev_nodes(lo: np.ndarray, hi: np.ndarray, count: int) -> np.ndarray:
@@ -61,6 +76,7 @@ class ChebyshevPieces:
     edges: np.ndarray
     coefficients: np.ndarray
     _lookup: dict = field(init=False, repr=False, compare=False)
+    _points: tuple = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
         edges = np.asarray(self.edges, float)
@@ -79,12 +95,15 @@ class ChebyshevPieces:
         object.__setattr__(self, "edges", edges)
         object.__setattr__(self, "coefficients", coefficients)
         scalar = np.array  # 0-d arrays: cheaper numpy operands than Python floats on small arrays
+        mid, inv_half = 0.5 * (edges[1:] + edges[:-1]), 2.0 / np.diff(edges)
         object.__setattr__(self, "_lookup", {
             "a": scalar(a), "b": scalar(b), "last_cell": scalar(cells - 1.0), "scale": scalar(cells / (b - a)),
-            "piece": piece_of_cell,
-            "mid": 0.5 * (edges[1:] + edges[:-1]), "inv_half": 2.0 / np.diff(edges),
-            "columns": np.ascontiguousarray(coefficients.T),
+            "piece": piece_of_cell, "mid": mid, "inv_half": inv_half, "columns": np.ascontiguousarray(coefficients.T),
         })
+        object.__setattr__(self, "_points", (  # the same tables as Python numbers, for `_point`
+            float(a), float(b), float(cells - 1.0), float(cells / (b - a)), piece_of_cell.tolist(),
+            mid.tolist(), inv_half.tolist(), coefficients.tolist(),
+        ))
 
     @property
     def degree(self) -> int:
@@ -94,7 +113,9 @@ class ChebyshevPieces:
         """Value of the series at x (scalar -> float, array -> array of the same shape)."""
         x = np.asarray(x, dtype=float)
         flat = x.reshape(-1)
-        if flat.size <= CHUNK:  # the live case: no copy into an output array
+        if flat.size <= FEW:  # a live chunk of a sample or two: Python numbers beat numpy's fixed cost
+            out = np.array([self._point(value) for value in flat.tolist()], dtype=float)
+        elif flat.size <= CHUNK:  # no copy into an output array
             out = self._evaluate(flat)
         else:
             out = np.empty_like(flat)
@@ -108,24 +129,25 @@ class ChebyshevPieces:
         x is first clipped onto [a, b] (NaN stays NaN), so no step meets an infinity and no
         floating-point state needs guarding; the points the clip moved are NaN at the end.
         Few numpy calls, none in place (an in-place ufunc on a one-element array costs about
-        three times a new one): their fixed cost is what a chunk of one sample pays.
+        three times a new one): their fixed cost is what a small chunk pays.
         """
         lk = self._lookup
         inside = np.minimum(np.maximum(x, lk["a"]), lk["b"])
         cell = np.fmin((inside - lk["a"]) * lk["scale"], lk["last_cell"])  # fmin maps NaN to a valid cell
         piece = lk["piece"].take(cell.astype(np.intp))
         t = (inside - lk["mid"].take(piece)) * lk["inv_half"].take(piece)
-        columns = lk["columns"]
-        if len(columns) == 1:
-            result = columns[0].take(piece)
-        else:
-            two_t = t + t
-            b1, b2 = columns[-1].take(piece), np.zeros(t.shape)
-            for k in range(len(columns) - 2, 0, -1):
-                b1, b2 = columns[k].take(piece) + two_t * b1 - b2, b1
-            result = columns[0].take(piece) + t * b1 - b2
+        result = _clenshaw([column.take(piece) for column in lk["columns"]], t)
         result[inside != x] = np.nan  # outside [a, b], and NaN input
         return result
+
+    def _point(self, x: float) -> float:
+        """`_evaluate` for one point in Python floats: the same IEEE operations in the same order,
+        so the same value to the bit, without numpy's cost per call."""
+        a, b, last_cell, scale, piece_of_cell, mid, inv_half, rows = self._points
+        if not a <= x <= b:  # outside, or NaN
+            return math.nan
+        piece = piece_of_cell[int(min((x - a) * scale, last_cell))]
+        return float(_clenshaw(rows[piece], (x - mid[piece]) * inv_half[piece]))
 
     def derivative(self) -> ChebyshevPieces:
         """The series of df/dx on the same pieces."""
