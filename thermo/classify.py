@@ -72,9 +72,9 @@ def classify(fluid, T, p, u_T=0.0, u_p=0.0, *, k: float = K_COVERAGE) -> Classif
     >>> str(classify(fluid("CO2"), 203.15, 101325.0).phase)  # common practice: CO2 at 1 atm, -70 C
     'vapor'
     """
-    arrays = np.broadcast_arrays(*(np.asarray(x, dtype=float) for x in (T, p, u_T, u_p)))
-    shape = arrays[0].shape
-    T, p, u_T, u_p = (a.ravel() for a in arrays)
+    values = [np.asarray(x, dtype=float) for x in (T, p, u_T, u_p)]
+    shape = np.broadcast_shapes(*(v.shape for v in values))  # cheaper than np.broadcast_arrays on a live chunk
+    T, p, u_T, u_p = (v.ravel() if v.shape == shape else np.broadcast_to(v, shape).ravel() for v in values)
     n = T.size
     code = np.empty(n, np.uint8)
     margins = np.empty((4, n))
