@@ -1,7 +1,9 @@
 """Cost of the monitor pipeline, with all eleven alarm conditions (ten and more) configured.
 
 Live: `Monitor.process` per sample for chunks of several sizes (classification included,
-acquisition's validator excluded and then included). Reference measured in the same run:
+acquisition's validator excluded and then included), each with the sample rate at which
+`run_live` (one chunk per poll) hands over chunks of that size and the share of a core the
+monitor then takes. Reference measured in the same run:
 thermo's classification called once per sample, the per-sample path the chunked design avoids.
 Target: <= 20 us per sample on top of acquisition.
 
@@ -14,6 +16,7 @@ thermo's classification of the same states alone. Target: <= about 1.5 s.
 from __future__ import annotations
 
 import argparse
+import inspect
 import time
 
 import numpy as np
@@ -23,9 +26,11 @@ from tui.acquire.sample import Quality, Sample
 from tui.acquire.validate import Validator
 from tui.monitor.batch import run_batch
 from tui.monitor.config import load_config
-from tui.monitor.pipeline import Monitor
+from tui.monitor.pipeline import Monitor, run_live
 
 ALL_ON = {"saturation-pressure"}  # off by default; on here so that every condition is evaluated
+#: run_live's default poll interval [s]: at a sample rate R it hands the monitor chunks of R * POLL_S
+POLL_S = inspect.signature(run_live).parameters["poll_s"].default
 #: live cost [us/sample] by chunk size before the small-chunk work on thermo's classification
 #: (commit 6fc8401, this machine, 2026-12-01), printed beside today's figures
 BEFORE_US = {1: 673.0, 10: 54.2, 50: 16.7, 200: 6.7, 1000: 4.6}
@@ -78,8 +83,10 @@ def bench_live(config, t, p, T, quality) -> None:
             per_sample = best_of(2, feed) / count
             label = "with validator" if validated else "monitor       "
             before = "" if validated else f"; before: {BEFORE_US[chunk]:6.1f} us/sample"
+            rate = chunk / POLL_S  # the sample rate at which run_live hands over chunks of this size
             print(f"live {label} chunk {chunk:5d}: {per_sample * 1e6:9.1f} us/sample "
-                  f"({per_sample / reference:5.2f} x reference{before})")
+                  f"({per_sample / reference:5.2f} x reference{before}; at {rate:6.0f} S/s "
+                  f"{per_sample * rate * 100:5.1f} % of a core)")
 
 
 def bench_batch(config, n: int) -> None:
