@@ -38,7 +38,7 @@ def _clenshaw(c, t):
     """sum_k c[k] T_k(t) by Clenshaw's recurrence; t and the c[k] are floats or arrays alike
     (Clenshaw, C. W. A note on the summation of Chebyshev series. Math. Comp. 9 (1955) 118-120)."""
     if len(c) == 1:
-        return c[0] + 0.0 * t
+        return c[0]
     two_t = t + t
     b1, b2 = c[-1], 0.0
     for k in range(len(c) - 2, 0, -1):
@@ -147,7 +147,7 @@ class ChebyshevPieces:
         if not a <= x <= b:  # outside, or NaN
             return math.nan
         piece = piece_of_cell[int(min((x - a) * scale, last_cell))]
-        return float(_clenshaw(rows[piece], (x - mid[piece]) * inv_half[piece]))
+        return _clenshaw(rows[piece], (x - mid[piece]) * inv_half[piece])
 
     def derivative(self) -> ChebyshevPieces:
         """The series of df/dx on the same pieces."""
